@@ -1,0 +1,164 @@
+"""``fit``: the one entry point.  Validates, scales, solves, and explains."""
+
+from __future__ import annotations
+
+import time
+
+import numpy as np
+
+from . import kernels, scaling
+from .config import FitConfig
+from .dual import solve_dual
+from .errors import ConvergenceError, InputError
+from .model import DecisionModel
+from .primal import solve_primal
+from .result import (INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, FitResult,
+                     KKTResiduals)
+
+
+def validate_points(X, y) -> tuple[np.ndarray, np.ndarray]:
+    """Coordinates as an (n, 2) float array and labels as +1 / -1, or InputError."""
+    try:
+        X = np.asarray(X, dtype=float)
+    except (TypeError, ValueError) as exc:
+        raise InputError(f"point coordinates must be numbers ({exc})") from None
+    if X.ndim != 2 or X.shape[1] != 2:
+        raise InputError(f"points must be an n x 2 array of coordinates; got shape {X.shape}")
+    y = np.asarray(y)
+    if y.shape != (len(X),):
+        raise InputError(f"there must be one label per point: {len(X)} points, "
+                         f"{y.size} labels")
+    if len(X) < 2:
+        raise InputError(f"a fit needs at least two points, one of each class; got {len(X)}")
+    bad = np.flatnonzero(~np.isfinite(X).all(axis=1))
+    if len(bad):
+        rows = ", ".join(str(i) for i in bad[:10]) + (" ..." if len(bad) > 10 else "")
+        raise InputError(f"coordinates must be finite numbers; NaN or infinity in "
+                         f"point(s) {rows} (counting from 0)")
+    try:
+        y = y.astype(float)
+    except (TypeError, ValueError):
+        raise InputError("labels must be +1 or -1") from None
+    if not np.isin(y, (-1.0, 1.0)).all():
+        odd = sorted(set(y[~np.isin(y, (-1.0, 1.0))].tolist()))[:5]
+        raise InputError(f"labels must be +1 or -1; found {odd}")
+    for sign, name in ((1, "+1"), (-1, "-1")):
+        if not (y == sign).any():
+            raise InputError(f"both classes are needed, but no point has label {name}; "
+                             f"add at least one point of the other class")
+    if (X == X[0]).all():
+        raise InputError("all points sit at the same coordinates; no boundary can be "
+                         "drawn between them — move or add points")
+    return X, y.astype(int)
+
+
+def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = None) -> FitResult:
+    """Fit a two-feature support vector machine.
+
+    X (n x 2) in the user's units, y in {-1, +1}.  ``warm_start`` is a previous
+    result; kernel fits use its decision function to guess the working set.
+    Raises a SlacklineError subclass on anything it cannot fit.
+    """
+    config = config or FitConfig()
+    if not isinstance(config, FitConfig):
+        raise InputError(f"config must be a FitConfig; got {type(config).__name__}")
+    X, y = validate_points(X, y)
+    start = time.perf_counter()
+    shift, scale = scaling.scaling_parameters(X, config.scaling)
+    Xs = scaling.apply(X, shift, scale)
+    penalties = np.array([config.penalty(sign) for sign in (1, -1)])[(y < 0).astype(int)]
+
+    if config.uses_feature_map:
+        phi = kernels.feature_map(Xs, config.kernel, config.gamma, config.degree, config.coef0)
+        sol = solve_primal(phi, y, None if config.hard_margin else penalties, config.options)
+        model = DecisionModel(config.kernel, config.gamma, config.degree, config.coef0,
+                              shift, scale, sol.b, feature_weights=sol.w)
+        decision = phi @ sol.w + sol.b
+        alpha = np.clip(sol.alpha, 0.0, penalties)
+        norm_w = float(np.linalg.norm(sol.w))
+        dual_quadratic = float(np.sum((phi.T @ (alpha * y)) ** 2))
+        rounds, working_set = 1, len(y)
+    else:
+        guess = None
+        if warm_start is not None:
+            guess = y * warm_start.decision_function(X)
+        kernel_matrix = lambda A, B: kernels.rbf_matrix(A, B, config.gamma)  # noqa: E731
+        sol = solve_dual(Xs, y, penalties, kernel_matrix, config.options, guess_margin=guess)
+        alpha = sol.alpha
+        support = np.flatnonzero(alpha > 0)
+        coefficients = alpha[support] * y[support]
+        model = DecisionModel(config.kernel, config.gamma, config.degree, config.coef0,
+                              shift, scale, sol.b, support_vectors=Xs[support],
+                              coefficients=coefficients)
+        decision = sol.decision
+        K_ss = kernel_matrix(Xs[support], Xs[support])
+        dual_quadratic = float(coefficients @ K_ss @ coefficients)
+        norm_w = float(np.sqrt(max(dual_quadratic, 0.0)))
+        rounds, working_set = sol.rounds, sol.working_set
+    seconds = time.perf_counter() - start
+
+    margin = y * decision
+    slack = np.maximum(0.0, 1.0 - margin)
+    finite = np.isfinite(penalties)
+    primal = 0.5 * norm_w ** 2 + float(np.dot(penalties[finite], slack[finite]))
+    dual = float(alpha.sum()) - 0.5 * dual_quadratic
+    relative_gap = abs(primal - dual) / max(1.0, abs(primal))
+    status, support = _classify(alpha, penalties, slack, margin, relative_gap)
+    kkt = _kkt_residuals(alpha, penalties, y, margin, slack, status)
+    converged = sol.status == "optimal"
+    result = FitResult(config=config, X=X, y=y, alpha=alpha, penalties=penalties,
+                       decision=decision, status=status, support=support, model=model,
+                       norm_w=norm_w, primal_objective=primal, dual_objective=dual,
+                       kkt=kkt, iterations=sol.iterations, seconds=seconds,
+                       converged=converged, solver_status=sol.status, rounds=rounds,
+                       working_set=working_set)
+    if not converged:
+        raise ConvergenceError(
+            f"the solver stopped after {sol.iterations} iterations without reaching its "
+            f"tolerance (relative duality gap {relative_gap:.1e}); the figures shown are "
+            "from its last iterate. Try scaling the features or a smaller C.", best=result)
+    return result
+
+
+def _alpha_tolerance(relative_gap: float) -> float:
+    """Relative threshold for "alpha is 0" / "alpha is C", tied to the solver's accuracy.
+
+    Interior-point complementarity alpha_i * s_i shrinks with the gap, so an
+    inactive multiplier is about gap / s_i; sqrt(gap) splits the two regimes.
+    """
+    return float(np.clip(np.sqrt(relative_gap), 1e-8, 1e-4))
+
+
+def _classify(alpha, penalties, slack, margin, relative_gap):
+    tau = _alpha_tolerance(relative_gap)
+    finite = np.isfinite(penalties)
+    scale = np.where(finite, penalties, max(float(alpha.max()), 1e-300))
+    is_zero = alpha <= tau * scale
+    at_bound = finite & (alpha >= (1.0 - tau) * np.where(finite, penalties, 0.0))
+    margin_tol = max(1e-7, tau)
+    status = np.full(len(alpha), ON_MARGIN, dtype=object)
+    status[is_zero] = OUTSIDE
+    inside = at_bound & ~is_zero & (slack > margin_tol)
+    status[inside] = INSIDE
+    status[inside & (slack > 1.0)] = MISCLASSIFIED
+    # a point across the boundary is misclassified whatever its alpha says
+    status[margin < 0] = MISCLASSIFIED
+    return status.astype(str), np.flatnonzero(~is_zero)
+
+
+def _kkt_residuals(alpha, penalties, y, margin, slack, status) -> KKTResiduals:
+    finite = np.isfinite(penalties)
+    bounds = float(np.max(np.maximum(0.0, -alpha)))
+    if finite.any():
+        bounds = max(bounds, float(np.max(np.maximum(0.0, alpha[finite] - penalties[finite]))))
+    equality = abs(float(alpha @ y)) / max(1.0, float(alpha.sum()))
+    primal = float(np.max(np.maximum(0.0, 1.0 - slack - margin)))
+    gaps = np.zeros(len(alpha))
+    outside = status == OUTSIDE
+    gaps[outside] = np.maximum(0.0, 1.0 - margin[outside])
+    on = status == ON_MARGIN
+    gaps[on] = np.abs(margin[on] - 1.0)
+    bound = (status == INSIDE) | (status == MISCLASSIFIED)
+    gaps[bound] = np.maximum(0.0, margin[bound] - 1.0)
+    return KKTResiduals(primal=primal, bounds=bounds, equality=equality,
+                        complementarity=float(gaps.max()))

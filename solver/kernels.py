@@ -1,0 +1,44 @@
+"""Kernels and the exact polynomial feature map in two variables."""
+
+from __future__ import annotations
+
+from math import factorial, sqrt
+
+import numpy as np
+
+
+def rbf_matrix(A: np.ndarray, B: np.ndarray, gamma: float) -> np.ndarray:
+    """K_ij = exp(-gamma |a_i - b_j|^2), computed as |a|^2 + |b|^2 - 2 a.b."""
+    sq = (A * A).sum(1)[:, None] + (B * B).sum(1)[None, :] - 2.0 * (A @ B.T)
+    np.maximum(sq, 0.0, out=sq)
+    return np.exp(-gamma * sq)
+
+
+def poly_exponents(degree: int) -> list[tuple[int, int, int]]:
+    """All (i, j, k) with i + j + k = degree: (p+1)(p+2)/2 of them."""
+    return [(i, j, degree - i - j) for i in range(degree + 1) for j in range(degree + 1 - i)]
+
+
+def poly_feature_map(X: np.ndarray, gamma: float, degree: int, coef0: float) -> np.ndarray:
+    """phi(x) with phi(x).phi(z) = (gamma x.z + coef0) ** degree exactly.
+
+    Multinomial expansion with u = sqrt(gamma) x:
+      (u1 v1 + u2 v2 + c)^p = sum_{i+j+k=p} p!/(i! j! k!) (u1 v1)^i (u2 v2)^j c^k,
+    so phi_ijk(u) = sqrt(p!/(i! j! k!) c^k) u1^i u2^j.
+    """
+    U = np.sqrt(gamma) * X
+    columns = []
+    for i, j, k in poly_exponents(degree):
+        coefficient = sqrt(factorial(degree) / (factorial(i) * factorial(j) * factorial(k))
+                           * coef0 ** k)
+        if coefficient == 0.0:
+            continue  # coef0 = 0 drops every term with k > 0
+        columns.append(coefficient * U[:, 0] ** i * U[:, 1] ** j)
+    return np.column_stack(columns)
+
+
+def feature_map(X: np.ndarray, kernel: str, gamma: float, degree: int, coef0: float):
+    """Explicit features for the primal solver (linear: the points themselves)."""
+    if kernel == "linear":
+        return X
+    return poly_feature_map(X, gamma, degree, coef0)

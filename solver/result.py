@@ -1,0 +1,212 @@
+"""The immutable result of one fit: global figures and every point's story."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import cached_property
+
+import numpy as np
+
+from .config import FitConfig
+from .model import DecisionModel
+
+# Per-point status codes (stable: they appear in files) and their wording.
+OUTSIDE = "outside"
+ON_MARGIN = "on_margin"
+INSIDE = "inside"
+MISCLASSIFIED = "misclassified"
+STATUSES = (OUTSIDE, ON_MARGIN, INSIDE, MISCLASSIFIED)
+STATUS_TEXT = {
+    OUTSIDE: "outside the margin",
+    ON_MARGIN: "on the margin",
+    INSIDE: "inside the margin",
+    MISCLASSIFIED: "misclassified",
+}
+
+
+@dataclass(frozen=True)
+class KKTResiduals:
+    """Largest violation of each optimality condition (0 at an exact optimum).
+
+    primal:          max_i max(0, 1 - xi_i - y_i f(x_i))    (margin constraints)
+    bounds:          max_i max(0, -alpha_i, alpha_i - C_i)   (box of the dual)
+    equality:        |sum_i alpha_i y_i| / max(1, sum_i alpha_i)
+    complementarity: max_i of |y_i f_i - 1| over free alphas, of
+                     max(0, 1 - y_i f_i) where alpha_i = 0 and of
+                     max(0, y_i f_i - 1) where alpha_i = C_i
+    """
+
+    primal: float
+    bounds: float
+    equality: float
+    complementarity: float
+
+    @property
+    def largest(self) -> float:
+        return max(self.primal, self.bounds, self.equality, self.complementarity)
+
+    def to_dict(self) -> dict:
+        return {"primal": self.primal, "bounds": self.bounds,
+                "equality": self.equality, "complementarity": self.complementarity}
+
+
+def _frozen(array) -> np.ndarray:
+    array = np.array(array, copy=True)
+    array.setflags(write=False)
+    return array
+
+
+@dataclass(frozen=True, eq=False)
+class FitResult:
+    """Everything a fit found.  Arrays are read-only and in input row order."""
+
+    config: FitConfig
+    X: np.ndarray                 # points, original units (n x 2)
+    y: np.ndarray                 # signs, +1 / -1
+    alpha: np.ndarray             # dual variables, 0 <= alpha_i <= C_i
+    penalties: np.ndarray         # C_i (inf for hard margin)
+    decision: np.ndarray          # f(x_i)
+    status: np.ndarray            # one of STATUSES per point
+    support: np.ndarray           # indices with alpha_i > 0 (relative threshold)
+    model: DecisionModel
+    norm_w: float                 # |w| in the space the fit ran in (after scaling)
+    primal_objective: float       # 1/2 |w|^2 + sum C_i xi_i
+    dual_objective: float         # sum alpha_i - 1/2 |w|^2
+    kkt: KKTResiduals
+    iterations: int               # interior-point iterations, all rounds
+    seconds: float                # solve wall time
+    converged: bool = True
+    solver_status: str = "optimal"
+    rounds: int = 1               # working-set rounds (kernel dual), 1 otherwise
+    working_set: int = 0          # variables in the last QP
+
+    def __post_init__(self):
+        for name in ("X", "y", "alpha", "penalties", "decision", "status", "support"):
+            object.__setattr__(self, name, _frozen(getattr(self, name)))
+
+    # -- per point ---------------------------------------------------------
+    @cached_property
+    def functional_margin(self) -> np.ndarray:
+        """y_i f(x_i): at least 1 outside the band, below 0 when misclassified."""
+        return _frozen(self.y * self.decision)
+
+    @cached_property
+    def slack(self) -> np.ndarray:
+        """xi_i = max(0, 1 - y_i f(x_i))."""
+        return _frozen(np.maximum(0.0, 1.0 - self.functional_margin))
+
+    @cached_property
+    def distance(self) -> np.ndarray:
+        """Signed distance y_i f(x_i) / |w| to the boundary (original units for linear)."""
+        return _frozen(self.functional_margin / self.weight_norm)
+
+    @cached_property
+    def projection(self) -> np.ndarray | None:
+        """p_i = w.x_i / |w|, the point's projection onto the direction of w (linear)."""
+        if self.w is None:
+            return None
+        return _frozen(self.X @ self.w / self.weight_norm)
+
+    # -- global ------------------------------------------------------------
+    @cached_property
+    def w(self) -> np.ndarray | None:
+        """Weight vector in the user's original units (linear kernel only)."""
+        if self.config.kernel != "linear":
+            return None
+        from .scaling import weights_in_original_units
+        w, _ = weights_in_original_units(self.model.feature_weights, self.model.b,
+                                         self.model.shift, self.model.scale)
+        return _frozen(w)
+
+    @cached_property
+    def b(self) -> float:
+        """Intercept of f in the user's original units."""
+        if self.config.kernel != "linear":
+            return self.model.b
+        from .scaling import weights_in_original_units
+        _, b = weights_in_original_units(self.model.feature_weights, self.model.b,
+                                         self.model.shift, self.model.scale)
+        return b
+
+    @property
+    def weight_norm(self) -> float:
+        """|w| in original units (linear) or in the kernel's feature space."""
+        return float(np.linalg.norm(self.w)) if self.w is not None else self.norm_w
+
+    @property
+    def margin_width(self) -> float:
+        """2 / |w|: width of the band between f = -1 and f = +1."""
+        return 2.0 / self.weight_norm
+
+    @property
+    def half_norm_w2(self) -> float:
+        """The regularisation term 1/2 |w|^2 of the objective."""
+        return 0.5 * self.norm_w ** 2
+
+    @property
+    def penalty_term(self) -> float:
+        """The loss term sum_i C_i xi_i (0 for a hard margin)."""
+        finite = np.isfinite(self.penalties)
+        return float(np.dot(self.penalties[finite], self.slack[finite]))
+
+    @property
+    def duality_gap(self) -> float:
+        return self.primal_objective - self.dual_objective
+
+    @property
+    def relative_gap(self) -> float:
+        return abs(self.duality_gap) / max(1.0, abs(self.primal_objective))
+
+    @property
+    def training_error(self) -> float:
+        """Fraction of points on the wrong side of the boundary."""
+        return float(np.mean(self.functional_margin < 0))
+
+    def count(self, status: str) -> int:
+        return int(np.count_nonzero(self.status == status))
+
+    @property
+    def n_support(self) -> int:
+        return int(len(self.support))
+
+    def decision_function(self, points) -> np.ndarray:
+        """f evaluated anywhere (original units)."""
+        return self.model.decision_function(points)
+
+    def predict(self, points) -> np.ndarray:
+        """Sign of f: +1 or -1 (0 maps to +1)."""
+        return np.where(self.decision_function(points) >= 0, 1, -1)
+
+
+def result_to_dict(result: FitResult) -> dict:
+    """JSON-ready figures of a result; per-point arrays in input row order."""
+    data = {
+        "kernel": result.config.kernel,
+        "b": result.b,
+        "alpha": result.alpha.tolist(),
+        "slack": result.slack.tolist(),
+        "decision": result.decision.tolist(),
+        "functional_margin": result.functional_margin.tolist(),
+        "distance": result.distance.tolist(),
+        "status": result.status.tolist(),
+        "support": result.support.tolist(),
+        "counts": {status: result.count(status) for status in STATUSES},
+        "training_error": result.training_error,
+        "objective": {
+            "primal": result.primal_objective,
+            "dual": result.dual_objective,
+            "gap": result.duality_gap,
+            "regularisation": result.half_norm_w2,
+            "penalty": result.penalty_term,
+        },
+        "kkt_residuals": result.kkt.to_dict(),
+        "iterations": result.iterations,
+        "rounds": result.rounds,
+        "seconds": result.seconds,
+        "converged": result.converged,
+    }
+    if result.w is not None:
+        data["w"] = result.w.tolist()
+        data["margin_width"] = result.margin_width
+        data["projection"] = result.projection.tolist()
+    return data

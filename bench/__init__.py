@@ -1,0 +1,1 @@
+"""Benchmarks for the speed targets in DEVELOPERS.md; run with `make bench`."""

@@ -8,10 +8,10 @@ import numpy as np
 
 from . import kernels, scaling
 from .config import FitConfig
-from .dual import solve_dual
 from .errors import ConvergenceError, InputError
 from .model import DecisionModel
 from .primal import solve_primal
+from .working_set import solve_dual
 from .result import (INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, FitResult,
                      KKTResiduals)
 
@@ -79,11 +79,10 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
         dual_quadratic = float(np.sum((phi.T @ (alpha * y)) ** 2))
         rounds, working_set = 1, len(y)
     else:
-        guess = None
-        if warm_start is not None:
-            guess = y * warm_start.decision_function(X)
+        guess, alpha_start = _warm_start_guess(warm_start, X, y, config, penalties)
         kernel_matrix = lambda A, B: kernels.rbf_matrix(A, B, config.gamma)  # noqa: E731
-        sol = solve_dual(Xs, y, penalties, kernel_matrix, config.options, guess_margin=guess)
+        sol = solve_dual(Xs, y, penalties, kernel_matrix, config.options, guess_margin=guess,
+                         alpha_start=alpha_start)
         alpha = sol.alpha
         support = np.flatnonzero(alpha > 0)
         coefficients = alpha[support] * y[support]
@@ -118,6 +117,28 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
             f"tolerance (relative duality gap {relative_gap:.1e}); the figures shown are "
             "from its last iterate. Try scaling the features or a smaller C.", best=result)
     return result
+
+
+def _warm_start_guess(warm_start, X, y, config, penalties):
+    """(margin guess, alpha start) from a previous result, or (None, None).
+
+    Same points and kernel: start from its alphas, those at their old bound
+    moved to the new C_i.  Otherwise: its decision function guesses margins.
+    """
+    if warm_start is None:
+        return None, None
+    same_points = warm_start.X.shape == X.shape and np.array_equal(warm_start.X, X) \
+        and np.array_equal(warm_start.y, y)
+    same_kernel = (warm_start.config.kernel == config.kernel
+                   and warm_start.config.gamma == config.gamma
+                   and warm_start.config.scaling == config.scaling)
+    if same_points and same_kernel:
+        at_bound = warm_start.status != "outside"
+        at_bound &= np.isfinite(warm_start.penalties)
+        at_bound &= warm_start.alpha >= warm_start.penalties * (1 - 1e-6)
+        alpha = np.where(at_bound, penalties, np.minimum(warm_start.alpha, penalties))
+        return warm_start.functional_margin, alpha
+    return y * warm_start.decision_function(X), None
 
 
 def _alpha_tolerance(relative_gap: float) -> float:

@@ -19,7 +19,6 @@ from dataclasses import dataclass
 
 import cvxopt
 import numpy as np
-from scipy.linalg import cho_factor, cho_solve
 
 from .errors import NotSeparableError
 
@@ -47,6 +46,7 @@ class _Problem:
         self.n, self.m = n, m
         self.hard = penalties is None
         self.A = y[:, None] * np.column_stack([phi, np.ones(n)])   # diag(y) [Phi 1]
+        self.At = np.ascontiguousarray(self.A.T)
         self.nv = m + 1
         self.size = self.nv + (0 if self.hard else n)
         self.p_diag = np.zeros(self.nv)
@@ -81,9 +81,9 @@ class _Problem:
                 vv[n:] -= alpha * xi
         else:
             if self.hard:
-                vv -= alpha * (self.A.T @ uv)
+                vv -= alpha * (self.At @ uv)
             else:
-                vv[:nv] -= alpha * (self.A.T @ uv[:n])
+                vv[:nv] -= alpha * (self.At @ uv[:n])
                 vv[nv:] -= alpha * (uv[:n] + uv[n:])
 
     def kktsolver(self, W):
@@ -100,21 +100,20 @@ class _Problem:
             S v = rv - A' (E1/(E1+E2) rxi),  S = Pv + A' diag(E1 E2/(E1+E2)) A,
         then xi = (rxi - E1 A v) / (E1 + E2).
         """
-        n, nv, A = self.n, self.nv, self.A
+        n, nv, A, At = self.n, self.nv, self.A, self.At
         di = _vec(W["di"])
         e1, e2 = di[:n] ** 2, di[n:] ** 2
         denom = e1 + e2
-        S = (A * (e1 * e2 / denom)[:, None]).T @ A
+        S = (At * (e1 * e2 / denom)) @ A
         S[np.diag_indices(nv)] += self.p_diag
-        S_factor = cho_factor(S)
 
         def solve(x, y, z):
             xv, zv = _vec(x), _vec(z)
             bz1, bz2 = zv[:n].copy(), zv[n:].copy()
-            rv = xv[:nv] - A.T @ (e1 * bz1)
-            rxi = xv[nv:] - e1 * bz1 - e2 * bz2
-            rhs = rv - A.T @ (e1 / denom * rxi)
-            v = cho_solve(S_factor, rhs)
+            e1bz1 = e1 * bz1
+            rxi = xv[nv:] - e1bz1 - e2 * bz2
+            rhs = xv[:nv] - At @ (e1bz1 + e1 / denom * rxi)
+            v = np.linalg.solve(S, rhs)
             Av = A @ v
             xi = (rxi - e1 * Av) / denom
             xv[:nv] = v
@@ -126,18 +125,17 @@ class _Problem:
 
     def _kkt_hard(self, W):
         """Hard margin: G = -A, so (P + A' E A) v = bx - A' (E bz), z = di (-A v - bz)."""
-        nv, A = self.nv, self.A
+        nv, A, At = self.nv, self.A, self.At
         di = _vec(W["di"])
         e = di ** 2
-        S = (A * e[:, None]).T @ A
+        S = (At * e) @ A
         S[np.diag_indices(nv)] += self.p_diag
-        S_factor = cho_factor(S)
 
         def solve(x, y, z):
             xv, zv = _vec(x), _vec(z)
             bz = zv.copy()
-            rhs = xv - A.T @ (e * bz)
-            v = cho_solve(S_factor, rhs)
+            rhs = xv - At @ (e * bz)
+            v = np.linalg.solve(S, rhs)
             xv[:] = v
             zv[:] = di * (-(A @ v) - bz)
         return solve

@@ -39,7 +39,8 @@ def pointer(path) -> str:
 def schema_problems(document) -> list[str]:
     """Every way ``document`` breaks the experiment schema, in document order."""
     errors = sorted(_validator().iter_errors(document),
-                    key=lambda e: [str(p).zfill(12) for p in e.absolute_path])
+                    key=lambda e: [(0, p, "") if isinstance(p, int) else (1, 0, str(p))
+                                   for p in e.absolute_path])
     return cap([f"{pointer(e.absolute_path)}: {_wording(e)}" for e in errors])
 
 
@@ -66,8 +67,9 @@ def _wording(error) -> str:
         return f"expected {short(detail)}; got {short(value)}"
     if kind == "type":
         wanted = detail if isinstance(detail, list) else [detail]
-        return (f"expected {' or '.join(_type_word(t) for t in wanted)}; "
-                f"got {_JSON_TYPES.get(type(value), 'a value')} {short(value)}")
+        got = "null" if value is None else f"{_JSON_TYPES.get(type(value), 'a value')} " \
+                                           f"{short(value)}"
+        return f"expected {' or '.join(_type_word(t) for t in wanted)}; got {got}"
     if kind == "additionalProperties":
         known = set(error.schema.get("properties", {}))
         extra = [key for key in value if key not in known]

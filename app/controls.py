@@ -1,0 +1,192 @@
+"""Fit settings: C (log slider + exact field), hard margin, kernel, class weights, scaling."""
+
+from __future__ import annotations
+
+import itertools
+import math
+
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QDoubleValidator
+from PySide6.QtWidgets import (QButtonGroup, QCheckBox, QComboBox, QDoubleSpinBox, QFormLayout,
+                               QHBoxLayout, QLineEdit, QRadioButton, QSlider, QSpinBox,
+                               QVBoxLayout, QWidget, QGroupBox)
+
+from solver.errors import InputError
+
+LOG_C_MIN, LOG_C_MAX = -3.0, 4.0     # the slider spans C = 1e-3 .. 1e4
+SLIDER_STEPS = 700                   # 100 steps per decade
+_gestures = itertools.count(1)
+
+
+def slider_to_C(position: int) -> float:
+    return 10.0 ** (LOG_C_MIN + (LOG_C_MAX - LOG_C_MIN) * position / SLIDER_STEPS)
+
+
+def C_to_slider(C: float) -> int:
+    t = (math.log10(C) - LOG_C_MIN) / (LOG_C_MAX - LOG_C_MIN)
+    return int(round(min(max(t, 0.0), 1.0) * SLIDER_STEPS))
+
+
+def _spin(minimum, maximum, decimals, step):
+    box = QDoubleSpinBox()
+    box.setRange(minimum, maximum)
+    box.setDecimals(decimals)
+    box.setSingleStep(step)
+    box.setKeyboardTracking(False)
+    return box
+
+
+class Controls(QWidget):
+    """Reads the document's config and sends it SetConfig commands; no fitting here."""
+
+    def __init__(self, document, canvas=None, parent=None):
+        super().__init__(parent)
+        self.document = document
+        self.canvas = canvas
+        self._updating = False
+        self._gesture = None
+
+        self.slider = QSlider(Qt.Horizontal)
+        self.slider.setRange(0, SLIDER_STEPS)
+        self.slider.setToolTip("C on a logarithmic scale, 0.001 to 10000")
+        self.C_field = QLineEdit()
+        self.C_field.setValidator(QDoubleValidator(1e-300, 1e300, 12))
+        self.C_field.setMaximumWidth(90)
+        self.C_field.setToolTip("the exact value of C; press Enter to apply")
+        self.hard = QCheckBox("hard margin (C = \u221e)")
+        row = QHBoxLayout()
+        row.addWidget(self.slider, 1)
+        row.addWidget(self.C_field)
+
+        self.kernel = QComboBox()
+        self.kernel.addItems(["linear", "poly", "rbf"])
+        self.gamma = _spin(1e-4, 1e4, 4, 0.1)
+        self.degree = QSpinBox()
+        self.degree.setRange(1, 10)
+        self.coef0 = _spin(0.0, 1e4, 3, 0.5)
+        self.weight_positive = _spin(1e-3, 1e3, 3, 0.1)
+        self.weight_negative = _spin(1e-3, 1e3, 3, 0.1)
+        self.scaling = QComboBox()
+        self.scaling.addItems(["none", "standard", "minmax"])
+        self.scaling.setToolTip("standard: zero mean, unit variance; minmax: onto [0, 1]. "
+                                "w and b are always shown in the original units")
+
+        self.form = QFormLayout()
+        self.form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
+        self.form.addRow("C", row)
+        self.form.addRow("", self.hard)
+        self.form.addRow("kernel", self.kernel)
+        self.form.addRow("gamma", self.gamma)
+        self.form.addRow("degree", self.degree)
+        self.form.addRow("coef0", self.coef0)
+        self.form.addRow("scaling", self.scaling)
+        self.weight_form = QFormLayout()
+        self.weight_form.addRow("+1 weight", self.weight_positive)
+        self.weight_form.addRow("\u22121 weight", self.weight_negative)
+        weights = QGroupBox("class weights (C_i = C \u00d7 weight)")
+        weights.setLayout(self.weight_form)
+
+        self.new_class = QButtonGroup(self)
+        self.add_positive = QRadioButton("+1")
+        self.add_negative = QRadioButton("\u22121")
+        self.add_positive.setChecked(True)
+        self.new_class.addButton(self.add_positive, 1)
+        self.new_class.addButton(self.add_negative, -1)
+        adding = QGroupBox("a click adds (Shift: the other class)")
+        adding_row = QHBoxLayout(adding)
+        adding_row.addWidget(self.add_positive)
+        adding_row.addWidget(self.add_negative)
+        adding_row.addStretch(1)
+
+        layout = QVBoxLayout(self)
+        layout.addLayout(self.form)
+        layout.addWidget(weights)
+        layout.addWidget(adding)
+        layout.addStretch(1)
+
+        self.slider.sliderPressed.connect(self._start_gesture)
+        self.slider.sliderReleased.connect(self._end_gesture)
+        self.slider.valueChanged.connect(self._slider_moved)
+        self.C_field.editingFinished.connect(self._C_typed)
+        self.hard.toggled.connect(lambda on: self._change(hard_margin=bool(on)))
+        self.kernel.currentTextChanged.connect(lambda text: self._change(kernel=text))
+        self.gamma.valueChanged.connect(lambda v: self._change(gamma=float(v)))
+        self.degree.valueChanged.connect(lambda v: self._change(degree=int(v)))
+        self.coef0.valueChanged.connect(lambda v: self._change(coef0=float(v)))
+        self.weight_positive.valueChanged.connect(lambda v: self._change(weight_positive=float(v)))
+        self.weight_negative.valueChanged.connect(lambda v: self._change(weight_negative=float(v)))
+        self.scaling.currentTextChanged.connect(lambda text: self._change(scaling=text))
+        self.new_class.idToggled.connect(self._new_class_toggled)
+        document.config_changed.connect(self.show_config)
+        document.points_changed.connect(self._show_class_names)
+        self.show_config()
+        self._show_class_names()
+
+    # -- widgets -> document -------------------------------------------------------
+    def _start_gesture(self):
+        self._gesture = ("C-slider", next(_gestures))
+
+    def _end_gesture(self):
+        self._gesture = None
+
+    def _slider_moved(self, position):
+        if self._updating:
+            return
+        C = float(f"{slider_to_C(position):.4g}")
+        # one drag of the slider is one undo step
+        self.document.set_C(C, merge_key=self._gesture)
+
+    def _C_typed(self):
+        try:
+            value = float(self.C_field.text())
+        except ValueError:
+            self.show_config()
+            return
+        self.document.set_C(value)
+
+    def _change(self, **changes):
+        if self._updating:
+            return
+        try:
+            config = self.document.config.with_changes(**changes)
+        except InputError as exc:
+            self.window().statusBar().showMessage(str(exc), 8000)
+            self.show_config()
+            return
+        self.document.set_config(config)
+
+    def _new_class_toggled(self, sign, checked):
+        if checked and self.canvas is not None:
+            self.canvas.new_point_sign = sign
+
+    # -- document -> widgets -------------------------------------------------------
+    def show_config(self):
+        config = self.document.config
+        self._updating = True
+        try:
+            if not self.slider.isSliderDown():
+                self.slider.setValue(C_to_slider(config.C))
+            self.C_field.setText(f"{config.C:.6g}")
+            self.hard.setChecked(config.hard_margin)
+            self.slider.setEnabled(not config.hard_margin)
+            self.C_field.setEnabled(not config.hard_margin)
+            self.kernel.setCurrentText(config.kernel)
+            self.gamma.setValue(config.gamma)
+            self.degree.setValue(int(config.degree))
+            self.coef0.setValue(config.coef0)
+            self.weight_positive.setValue(config.weight_positive)
+            self.weight_negative.setValue(config.weight_negative)
+            self.scaling.setCurrentText(config.scaling)
+            self.form.setRowVisible(self.gamma, config.kernel in ("poly", "rbf"))
+            self.form.setRowVisible(self.degree, config.kernel == "poly")
+            self.form.setRowVisible(self.coef0, config.kernel == "poly")
+        finally:
+            self._updating = False
+
+    def _show_class_names(self):
+        positive = str(self.document.label_for(1))
+        negative = str(self.document.label_for(-1))
+        self.add_positive.setText(f"{positive} (+1)")
+        self.add_negative.setText(f"{negative} (\u22121)")
+        self.weight_form.labelForField(self.weight_positive).setText(f"{positive} (+1)")
+        self.weight_form.labelForField(self.weight_negative).setText(f"{negative} (\u22121)")

@@ -1,0 +1,83 @@
+"""Everything the fit says about the selected point, with a plain-words reading."""
+
+from __future__ import annotations
+
+from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
+
+from solver.result import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT
+
+READING = {
+    OUTSIDE: "outside the margin: alpha is 0, so this point has no say in where the "
+             "boundary lies; moving it a little changes nothing",
+    ON_MARGIN: "on the margin: this point holds the boundary in place",
+    INSIDE: "inside the margin: on its own side of the boundary but closer than the "
+            "margin allows; it pays C\u1d62\u00b7\u03be\u1d62 and pulls with full force",
+    MISCLASSIFIED: "misclassified: on the wrong side of the boundary; it pays "
+                   "C\u1d62\u00b7\u03be\u1d62 with \u03be\u1d62 > 1",
+}
+
+FIELDS = ("index", "coordinates", "label", "decision", "margin", "distance", "projection",
+          "alpha", "slack", "status")
+TITLES = {"index": "point", "coordinates": "coordinates", "label": "label",
+          "decision": "decision value f(x)", "margin": "functional margin y\u00b7f",
+          "distance": "distance to boundary", "projection": "projection onto w",
+          "alpha": "alpha", "slack": "slack \u03be", "status": "status"}
+
+
+def _g(value) -> str:
+    return f"{value:.6g}"
+
+
+class Inspector(QWidget):
+    def __init__(self, document, parent=None):
+        super().__init__(parent)
+        self.document = document
+        self.values = {}
+        form = QFormLayout(self)
+        for key in FIELDS:
+            label = QLabel("\u2014")
+            label.setObjectName(f"inspector_{key}")
+            self.values[key] = label
+            form.addRow(TITLES[key], label)
+        self.reading = QLabel()
+        self.reading.setWordWrap(True)
+        self.reading.setObjectName("inspector_reading")
+        self.reading.setStyleSheet("font-style: italic;")
+        form.addRow(self.reading)
+        for signal in (document.selection_changed, document.result_changed,
+                       document.points_changed):
+            signal.connect(self.refresh)
+        self.refresh()
+
+    def text(self, key: str) -> str:
+        return self.values[key].text()
+
+    def refresh(self):
+        doc = self.document
+        selection = sorted(doc.selection)
+        for label in self.values.values():
+            label.setText("\u2014")
+        if len(selection) != 1:
+            self.reading.setText("select one point to inspect it" if not selection
+                                 else f"{len(selection)} points selected")
+            return
+        i = selection[0]
+        x, y = doc.X[i]
+        self.values["index"].setText(f"#{i}")
+        self.values["coordinates"].setText(f"({_g(x)}, {_g(y)})")
+        self.values["label"].setText(f"{doc.labels[i]} ({int(doc.y[i]):+d})")
+        result = doc.result
+        if result is None or len(result.y) != len(doc.X) or not (result.X[i] == doc.X[i]).all():
+            self.reading.setText("no fit for the current points yet")
+            return
+        self.values["decision"].setText(_g(result.decision[i]))
+        self.values["margin"].setText(_g(result.functional_margin[i]))
+        self.values["distance"].setText(_g(result.distance[i]) + ("" if result.w is not None
+                                                                   else " (feature space)"))
+        if result.projection is not None:
+            self.values["projection"].setText(_g(result.projection[i]))
+        self.values["alpha"].setText(f"{_g(result.alpha[i])}  (C\u1d62 = {_g(result.penalties[i])})")
+        self.values["slack"].setText(_g(result.slack[i]))
+        status = str(result.status[i])
+        self.values["status"].setText(STATUS_TEXT[status])
+        self.reading.setText(READING[status])

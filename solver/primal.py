@@ -19,6 +19,7 @@ from dataclasses import dataclass
 
 import cvxopt
 import numpy as np
+from scipy.optimize import linprog
 
 from .errors import NotSeparableError
 
@@ -144,18 +145,16 @@ class _Problem:
 def check_separable(phi: np.ndarray, y: np.ndarray) -> None:
     """Raise NotSeparableError unless some (w, b) has y_i (w.phi_i + b) >= 1 for all i.
 
-    A feasibility LP (minimise 0 subject to -A v <= -1); cvxopt certifies
-    infeasibility with a Farkas vector when there is none.
+    A feasibility LP, minimise 0 subject to -A v <= -1, solved by HiGHS
+    (scipy), which proves infeasibility when there is no such v.
     """
     A = y[:, None] * np.column_stack([phi, np.ones(len(y))])
-    c = cvxopt.matrix(np.zeros(A.shape[1]))
-    options = {"show_progress": False, "maxiters": 200}
-    sol = cvxopt.solvers.lp(c, cvxopt.matrix(-A), cvxopt.matrix(-np.ones(len(y))),
-                            options=options)
-    if sol["status"] != "optimal":
+    lp = linprog(np.zeros(A.shape[1]), A_ub=-A, b_ub=-np.ones(len(y)),
+                 bounds=[(None, None)] * A.shape[1], method="highs")
+    if lp.status == 2:
         raise NotSeparableError(
-            "the points are not linearly separable, so no hard margin exists; "
-            "use a finite C (a soft margin) instead")
+            "the points are not linearly separable; use a finite C (a soft margin) "
+            "instead of a hard margin")
 
 
 def solve_primal(phi: np.ndarray, y: np.ndarray, penalties: np.ndarray | None,

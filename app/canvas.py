@@ -53,7 +53,7 @@ class EditViewBox(pg.ViewBox):
         canvas, doc = self._canvas, self._canvas.document
         if ev.isStart():
             start = self.mapSceneToView(ev.buttonDownScenePos())
-            if ev.modifiers() & Qt.ControlModifier:
+            if (ev.modifiers() | canvas.press_modifiers) & Qt.ControlModifier:
                 self._start_box(start)
             else:
                 hit = canvas.hit_test(start.x(), start.y())
@@ -108,6 +108,7 @@ class Canvas(pg.PlotWidget):
         self._view = view
         self.document = document
         self.new_point_sign = 1
+        self.press_modifiers = Qt.NoModifier   # held at the last press (starts a gesture)
         self.plot = self.getPlotItem()
         self.plot.showGrid(x=True, y=True, alpha=0.15)
         for name in ("left", "bottom"):
@@ -218,6 +219,10 @@ class Canvas(pg.PlotWidget):
 
     def _place_stale(self):
         self._stale.move(self.width() - self._stale.width() - 12, 10)
+
+    def mousePressEvent(self, event):
+        self.press_modifiers = event.modifiers()
+        super().mousePressEvent(event)
 
     def resizeEvent(self, event):
         super().resizeEvent(event)

@@ -30,6 +30,11 @@ def _shade_lookup() -> np.ndarray:
     return table.astype(np.ubyte)
 
 
+def _pass_clicks(item):
+    """Let clicks on markers fall through to the view box, which owns editing."""
+    item.mouseClickEvent = lambda ev: ev.ignore()
+
+
 class SceneItems:
     """Every item of one plot: shading, boundary, band, w, slack, points, rings."""
 
@@ -68,16 +73,19 @@ class SceneItems:
                                       pen=pg.mkPen("#ffffff", width=0.8),
                                       brush=pg.mkBrush(class_colour(sign)), name=None)
             item.setZValue(5)
+            _pass_clicks(item)  # the view box edits points
             plot.addItem(item)
             self.points[sign] = item
         self.rings = pg.ScatterPlotItem(symbol="o", size=17, brush=None,
                                         pen=pg.mkPen(colours["support_ring"], width=1.6),
                                         name="support vector")
         self.rings.setZValue(4)
+        _pass_clicks(self.rings)
         plot.addItem(self.rings, ignoreBounds=True)
         self.selected = pg.ScatterPlotItem(symbol="o", size=23, brush=None,
                                            pen=pg.mkPen(colours["selection"], width=3.2))
         self.selected.setZValue(6)
+        _pass_clicks(self.selected)
         plot.addItem(self.selected, ignoreBounds=True)
         self.legend = None
         if legend:

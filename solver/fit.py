@@ -10,7 +10,7 @@ from . import kernels, scaling
 from .config import FitConfig
 from .errors import ConvergenceError, InputError
 from .model import DecisionModel
-from .primal import solve_primal
+from .primal_working_set import solve_primal
 from .working_set import solve_dual
 from .result import (INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, FitResult,
                      KKTResiduals)
@@ -70,7 +70,9 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
 
     if config.uses_feature_map:
         phi = kernels.feature_map(Xs, config.kernel, config.gamma, config.degree, config.coef0)
-        sol = solve_primal(phi, y, None if config.hard_margin else penalties, config.options)
+        guess = None if warm_start is None else y * warm_start.decision_function(X)
+        sol = solve_primal(phi, y, None if config.hard_margin else penalties, config.options,
+                           guess_margin=guess)
         model = DecisionModel(config.kernel, config.gamma, config.degree, config.coef0,
                               shift, scale, sol.b, feature_weights=sol.w)
         decision = phi @ sol.w + sol.b

@@ -42,7 +42,8 @@ class PrimalSolution:
 class _Problem:
     """Operators of one primal QP: phi (n x m), signs y, penalties C (None = hard)."""
 
-    def __init__(self, phi: np.ndarray, y: np.ndarray, penalties: np.ndarray | None):
+    def __init__(self, phi: np.ndarray, y: np.ndarray, penalties: np.ndarray | None,
+                 linear_v: np.ndarray | None = None):
         n, m = phi.shape
         self.n, self.m = n, m
         self.hard = penalties is None
@@ -54,6 +55,8 @@ class _Problem:
         self.p_diag[:m] = 1.0
 
         q = np.zeros(self.size)
+        if linear_v is not None:
+            q[:self.nv] = linear_v     # points held at alpha = C elsewhere (working set)
         if not self.hard:
             q[self.nv:] = penalties
         self.q = cvxopt.matrix(q)
@@ -157,12 +160,13 @@ def check_separable(phi: np.ndarray, y: np.ndarray) -> None:
             "instead of a hard margin")
 
 
-def solve_primal(phi: np.ndarray, y: np.ndarray, penalties: np.ndarray | None,
-                 options) -> PrimalSolution:
-    """Solve the primal QP; ``penalties`` None means a hard margin."""
-    if penalties is None:
-        check_separable(phi, y)
-    problem = _Problem(phi, y, penalties)
+def solve_primal_qp(phi: np.ndarray, y: np.ndarray, penalties: np.ndarray | None,
+                    options, linear_v: np.ndarray | None = None) -> PrimalSolution:
+    """One primal QP on these points; ``penalties`` None means a hard margin.
+
+    ``linear_v`` adds a linear term on v = (w, b) to the objective.
+    """
+    problem = _Problem(phi, y, penalties, linear_v)
     solver_options = {
         "show_progress": False,
         "maxiters": options.max_iterations,

@@ -74,19 +74,21 @@ SAMPLES = [
 ]
 
 
-def main() -> None:
+def main(folder: Path = HERE) -> None:
+    """Write every table and its experiment file to ``folder``."""
+    folder = Path(folder)
     for index, (name, make, positive, config, note) in enumerate(SAMPLES):
         rng = np.random.default_rng(20240 + index)
         header, rows = make(rng)
         order = rng.permutation(len(rows))
-        table = HERE / f"{name}.csv"
+        table = folder / f"{name}.csv"
         with open(table, "w", newline="", encoding="utf-8") as stream:
             writer = csv.writer(stream, lineterminator="\n")
             writer.writerow(header)
             writer.writerows(rows[i] for i in order)
         dataset = load_table(table, positive=positive)
         result = fit(dataset.X, dataset.y, config)
-        save_experiment(HERE / f"{name}.experiment.json", dataset, result, note=note)
+        save_experiment(folder / f"{name}.experiment.json", dataset, result, note=note)
         print(f"{table.name}: {len(dataset)} points, {result.n_support} support vectors, "
               f"training error {result.training_error:.1%}")
 

@@ -25,7 +25,7 @@ from .config import FitConfig
 from .dataset import Dataset
 from .errors import FileFormatError, InputError
 from .experiment_migrate import CURRENT_VERSION, migrate
-from .schema_check import cap, schema_problems, short
+from .schema_check import cap, non_finite_paths, schema_problems, short
 
 FORMAT_NAME = "slackline-experiment"
 FORMAT_VERSION = CURRENT_VERSION
@@ -190,9 +190,12 @@ def experiment_from_dict(data, name: str = "the experiment") -> Experiment:
     found_version = data.get("version")
     migrated = migrate(data, name)
     if migrated is not data:
-        migrated["checksum"] = {"algorithm": "sha256", "value": content_checksum(migrated)}
+        try:
+            migrated["checksum"] = {"algorithm": "sha256", "value": content_checksum(migrated)}
+        except ValueError:
+            pass  # a non-finite number, reported with its path below
     try:
-        problems = schema_problems(migrated)
+        problems = schema_problems(migrated) or cap(non_finite_paths(migrated))
     except RecursionError:
         raise FileFormatError(f"{name} is nested too deeply to be an experiment") from None
     if not problems:
@@ -244,9 +247,6 @@ def _consistency_problems(document: dict) -> list[str]:
             problems.append(f"/points/{i}/label: expected one of "
                             f"{', '.join(short(k) for k in known)} (the labels in "
                             f"/data/label_mapping); got {short(point['label'])}")
-    for i, point in enumerate(document["points"]):
-        if not all(math.isfinite(v) for v in point["x"]):
-            problems.append(f"/points/{i}/x: coordinates must be finite numbers")
     try:
         FitConfig.from_dict(document["config"])
     except (InputError, TypeError) as exc:
@@ -318,16 +318,14 @@ def _reject_constant(name: str):
     raise ValueError(f"{name} is not a JSON number; write null or a finite number")
 
 
+_LINE = json.JSONEncoder(ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+
+
 def _pretty(value, depth: int) -> str:
     pad, inner = "  " * depth, "  " * (depth + 1)
-    compact = json.dumps(value, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
-    if isinstance(value, dict) and value and (depth < 2 or len(compact) > 100):
-        items = [f"{inner}{json.dumps(k, ensure_ascii=False)}: {_pretty(v, depth + 1)}"
-                 for k, v in value.items()]
+    if isinstance(value, dict) and value and (depth < 2 or len(_LINE.encode(value)) > 100):
+        items = [f"{inner}{_LINE.encode(k)}: {_pretty(v, depth + 1)}" for k, v in value.items()]
         return "{\n" + ",\n".join(items) + "\n" + pad + "}"
-    if isinstance(value, list) and value and isinstance(value[0], (dict, list)) \
-            and len(compact) > 100:
-        items = [inner + json.dumps(v, ensure_ascii=False, allow_nan=False,
-                                    separators=(", ", ": ")) for v in value]
-        return "[\n" + ",\n".join(items) + "\n" + pad + "]"
-    return compact
+    if isinstance(value, list) and len(value) > 3 and isinstance(value[0], (dict, list)):
+        return "[\n" + ",\n".join(inner + _LINE.encode(v) for v in value) + "\n" + pad + "]"
+    return _LINE.encode(value)

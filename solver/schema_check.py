@@ -37,11 +37,86 @@ def pointer(path) -> str:
 
 
 def schema_problems(document) -> list[str]:
-    """Every way ``document`` breaks the experiment schema, in document order."""
-    errors = sorted(_validator().iter_errors(document),
+    """Every way ``document`` breaks the experiment schema, in document order.
+
+    The long per-point arrays are first checked by a plain loop that is at
+    least as strict as the schema; when it finds them clean, jsonschema sees
+    only their first entry (validating 100,000 points one by one through
+    jsonschema takes seconds).  Any doubt and jsonschema sees everything.
+    """
+    errors = sorted(_validator().iter_errors(_trimmed(document)),
                     key=lambda e: [(0, p, "") if isinstance(p, int) else (1, 0, str(p))
                                    for p in e.absolute_path])
     return cap([f"{pointer(e.absolute_path)}: {_wording(e)}" for e in errors])
+
+
+_NUMBER = (int, float)
+_LABEL = (str, int, float, bool)
+_STATUS = frozenset(["outside", "on_margin", "inside", "misclassified"])
+
+
+def _trimmed(document):
+    """``document`` with clean long arrays cut to their first entry (a shallow copy)."""
+    if not isinstance(document, dict):
+        return document
+    trimmed = dict(document)
+    points = document.get("points")
+    if isinstance(points, list) and len(points) > 1 and all(map(_plain_point, points)):
+        trimmed["points"] = points[:1]
+    results = document.get("results")
+    if isinstance(results, dict):
+        results = dict(results)
+        for key, clean in (("alpha", _plain_number), ("slack", _plain_number),
+                           ("decision", _plain_number), ("status", _STATUS.__contains__),
+                           ("support", _plain_index)):
+            values = results.get(key)
+            if isinstance(values, list) and len(values) > 1 and _all(clean, values):
+                results[key] = values[:1]
+        trimmed["results"] = results
+    return trimmed
+
+
+def _all(clean, values) -> bool:
+    try:
+        return all(map(clean, values))
+    except TypeError:          # unhashable entries in a status list
+        return False
+
+
+def _plain_number(value) -> bool:
+    return type(value) in _NUMBER
+
+
+def _plain_index(value) -> bool:
+    return type(value) is int and value >= 0
+
+
+def _plain_point(point) -> bool:
+    if type(point) is not dict or not 2 <= len(point) <= 3:
+        return False
+    x, label = point.get("x"), point.get("label", None)
+    if type(x) is not list or len(x) != 2 or type(x[0]) not in _NUMBER \
+            or type(x[1]) not in _NUMBER or type(label) not in _LABEL:
+        return False
+    if len(point) == 3:
+        line = point.get("line")
+        return type(line) is int and line >= 1
+    return True
+
+
+def non_finite_paths(value, path=()) -> list[str]:
+    """JSON pointers of every infinite or NaN number (JSON has no such numbers)."""
+    if isinstance(value, float):
+        return [] if value == value and value not in (float("inf"), float("-inf")) \
+            else [f"{pointer(path)}: expected a finite number; got {value!r}"]
+    found = []
+    if isinstance(value, dict):
+        for key, item in value.items():
+            found += non_finite_paths(item, path + (key,))
+    elif isinstance(value, list):
+        for index, item in enumerate(value):
+            found += non_finite_paths(item, path + (index,))
+    return found
 
 
 def cap(problems: list[str]) -> list[str]:

@@ -14,6 +14,7 @@ from __future__ import annotations
 import csv
 import hashlib
 import io
+import warnings
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -65,19 +66,28 @@ def read_table(path, nrows: int | None = None) -> RawTable:
     if _looks_binary(raw[:8192]):
         raise FileFormatError(f"{name} does not look like a text table (it holds binary "
                               "data); save it as CSV or TSV with a header row")
-    text = _decode(raw)
+    text = _decode(raw).replace("\r\n", "\n").replace("\r", "\n")
     if nrows is not None and len(raw) == PREVIEW_BYTES:
         text = text[:text.rfind("\n") + 1] or text  # drop a partial last line
     lead = len(text) - len(text.lstrip("\r\n \t"))
     first_line = 1 + text[:lead].count("\n")
     text = text[lead:]
     delimiter = _delimiter(path, text)
-    header = next(csv.reader(io.StringIO(text.split("\n", 1)[0]), delimiter=delimiter), [])
+    try:
+        header = next(csv.reader(io.StringIO(text.split("\n", 1)[0]), delimiter=delimiter), [])
+    except csv.Error as exc:
+        raise FileFormatError(f"the header row of {name} cannot be read: {exc}") from None
     names = _column_names(header, name)
     try:
-        frame = pd.read_csv(io.StringIO(text), sep=delimiter, header=0, names=names,
-                            skip_blank_lines=False, nrows=nrows, index_col=False,
-                            skipinitialspace=True, engine="c")
+        with warnings.catch_warnings():
+            # pandas only warns when rows are longer than the header, and drops the excess
+            warnings.simplefilter("error", pd.errors.ParserWarning)
+            frame = pd.read_csv(io.StringIO(text), sep=delimiter, header=0, names=names,
+                                skip_blank_lines=False, nrows=nrows, index_col=False,
+                                skipinitialspace=True, engine="c")
+    except pd.errors.ParserWarning:
+        raise FileFormatError(f"{name} has rows with more fields than its header has columns "
+                              f"({len(names)}); name every column in the header row") from None
     except pd.errors.ParserError as exc:
         raise FileFormatError(f"{name} is not a regular {DELIMITER_NAMES[delimiter]}-separated "
                               f"table: {_first_line_of(exc)}; every row needs as many fields "

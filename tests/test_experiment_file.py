@@ -189,3 +189,22 @@ def test_the_schema_names_every_fit_setting():
     from solver.schema_check import experiment_schema
     config = experiment_schema()["properties"]["config"]["properties"]
     assert set(config) == set(FitConfig().to_dict())
+
+
+def test_a_bad_point_deep_in_a_long_list_is_still_found():
+    many = Dataset.from_points(np.repeat(X, 10, axis=0), np.repeat(Y, 10))
+    document = experiment_to_dict(many, FitConfig(), None)
+    document["points"][37]["x"][1] = "0.5"
+    with pytest.raises(FileFormatError) as caught:
+        experiment_from_dict(document)
+    assert caught.value.problems == ['/points/37/x/1: expected a number; got a string "0.5"']
+
+
+def test_a_number_too_large_for_a_float_is_named_with_its_path(saved):
+    path, result = saved
+    text = path.read_text(encoding="utf-8")
+    path.write_text(text.replace(f'"b": {float(result.b)!r}', '"b": 1e999', 1),
+                    encoding="utf-8")
+    with pytest.raises(FileFormatError) as caught:
+        load_experiment(path)
+    assert caught.value.problems == ["/results/b: expected a finite number; got inf"]

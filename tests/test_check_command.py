@@ -94,3 +94,11 @@ def test_fit_save_writes_an_experiment_that_check_passes(tmp_path, capsys):
     assert main(["fit", str(SAMPLES / "2-proofing-trials.csv"), "--positive", "rose",
                  "--C", "0.5", "--scale", "standard", "--save", str(target)]) == 0
     assert main(["check", str(target)]) == 0
+
+
+def test_check_mentions_software_that_changed_since_the_file_was_written(copy, capsys):
+    def older(document):
+        document["written"]["numpy"] = "1.0.0"
+    rewrite(copy, older)
+    assert main(["check", str(copy)]) == 0
+    assert "numpy 1.0.0, now" in capsys.readouterr().out

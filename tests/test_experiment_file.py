@@ -208,3 +208,11 @@ def test_a_number_too_large_for_a_float_is_named_with_its_path(saved):
     with pytest.raises(FileFormatError) as caught:
         load_experiment(path)
     assert caught.value.problems == ["/results/b: expected a finite number; got inf"]
+
+
+def test_a_document_with_no_points_yet_round_trips(tmp_path):
+    empty = Dataset(X=np.zeros((0, 2)), y=np.zeros(0, dtype=int), labels=(),
+                    feature_names=("x1", "x2"), label_name="label",
+                    label_mapping={"+1": 1, "-1": -1})
+    path = save_experiment(tmp_path / "e.json", empty, None, config=FitConfig())
+    assert load_experiment(path).dataset == empty

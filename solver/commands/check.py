@@ -30,7 +30,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from ..errors import ConvergenceError, NotSeparableError
-from ..experiment import load_experiment, results_to_dict
+from ..experiment import load_experiment, provenance, results_to_dict
 from ..fit import fit
 
 RELATIVE = 1e-6
@@ -70,13 +70,18 @@ def run(args) -> int:
     fresh = results_to_dict(result)
     comparisons = compare(stored, fresh, np.asarray(result.penalties))
     drifted = [c for c in comparisons if not c.agrees]
+    changed = version_changes(experiment.written, provenance())
     if args.json:
         json.dump({"file": str(args.experiment), "agrees": not drifted,
+                   "software_changes": changed,
                    "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]},
                   sys.stdout)
         sys.stdout.write("\n")
     else:
         print(report_text(args.experiment, len(dataset), config, comparisons))
+        if changed:
+            print("  written with " + "; ".join(f"{k} {v[0]}, now {v[1]}"
+                                               for k, v in changed.items()))
     return 1 if drifted else 0
 
 
@@ -119,6 +124,12 @@ def compare(stored: dict, fresh: dict, penalties: np.ndarray) -> list[Comparison
         f"same {len(old_support)} points" if not differ else
         f"points {_list(differ)} are support vectors in only one of the fits"))
     return comparisons
+
+
+def version_changes(written: dict, now: dict) -> dict:
+    """Software whose version differs from the one that wrote the file: name -> (then, now)."""
+    return {key: (written.get(key), now[key]) for key in ("slackline", "python", "numpy", "cvxopt")
+            if written.get(key) is not None and written.get(key) != now[key]}
 
 
 def report_text(name, n_points, config, comparisons) -> str:

@@ -96,8 +96,13 @@ class StatusFilter(QSortFilterProxyModel):
         self.setSortRole(SORT_ROLE)
 
     def set_status(self, status):
-        self.status = status
-        self.invalidateFilter()
+        if hasattr(self, "beginFilterChange"):      # Qt 6.9 and later
+            self.beginFilterChange()
+            self.status = status
+            self.endFilterChange(QSortFilterProxyModel.Direction.Rows)
+        else:
+            self.status = status
+            self.invalidateFilter()
 
     def filterAcceptsRow(self, row, parent):
         if self.status is None:

@@ -90,6 +90,15 @@ class Document(QObject):
     def busy(self) -> bool:
         return self._solver.busy
 
+    def current_result(self):
+        """The result if it belongs to exactly the current points and settings, else None."""
+        result = self.result
+        if (result is None or self.result_is_stale or result.config != self._config
+                or len(result.y) != len(self._y) or not np.array_equal(result.X, self._X)
+                or not np.array_equal(result.y, self._y)):
+            return None
+        return result
+
     def label_for(self, sign: int):
         """The label as the user writes it for class ``sign``."""
         for label, value in self.label_mapping.items():

@@ -126,7 +126,8 @@ class FileActions(QObject):
     def save_to(self, path) -> bool:
         from solver.experiment import save_experiment
         doc = self.document
-        result = doc.result if doc.result is not None and not doc.result_is_stale else None
+        doc.wait_for_solve(10000)  # save the figures of these very points when they are ready
+        result = doc.current_result()
         try:
             save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config)
         except SlacklineError as exc:
@@ -147,10 +148,12 @@ class FileActions(QObject):
                                       f"{self._stem()}.png")
         if not path:
             return False
-        from pyqtgraph.exporters import ImageExporter, SVGExporter
+        from pyqtgraph.exporters import ImageExporter
+
+        from .render import write_svg
         plot = self.canvas.getPlotItem()
         if Path(path).suffix.lower() == ".svg":
-            SVGExporter(plot).export(fileName=str(path))
+            write_svg(self.canvas, path)
         else:
             if not Path(path).suffix:
                 path = f"{path}.png"
@@ -160,11 +163,11 @@ class FileActions(QObject):
 
     def _fitted(self, what):
         doc = self.document
-        if doc.result is None or doc.result_is_stale:
+        doc.wait_for_solve(10000)
+        if doc.current_result() is None:
             self.window.statusBar().showMessage(
                 f"nothing to export: {what} needs a fit of the current points", 8000)
-            return None
-        return doc.result
+        return doc.current_result()
 
     def export_points(self, path=None) -> bool:
         result = self._fitted("the points table")

@@ -100,8 +100,11 @@ def gradient_slack_targets(result, X, y, slack, reach, steps: int = 32):
     with np.errstate(divide="ignore", invalid="ignore"):
         t = np.where(m1 > m0, np.clip((1.0 - m0) / (m1 - m0), 0.0, 1.0), 1.0)
     length = distances[before] + t * (distances[first] - distances[before])
-    # an edge out of reach: a short stub shows only the direction
-    length = np.where(reached.any(axis=1), length, 0.15 * reach)
+    # the edge out of reach, or reached only far along a curving f: fall back to
+    # the first-order length xi_i / |grad f|, kept short (a stub showing direction)
+    first_order = np.minimum(slack / norm[:, 0], 0.15 * reach)
+    trusted = reached.any(axis=1) & (length <= 2.0 * first_order + 1e-12)
+    length = np.where(trusted, length, first_order)
     return X + length[:, None] * direction
 
 

@@ -86,14 +86,34 @@ def save_figure(path, dataset, result, width: int, height: int, pinned=None) -> 
     widget, _items = _plot_widget(dataset, result, int(width), int(height), pinned)
     try:
         if suffix == ".svg":
-            from pyqtgraph.exporters import SVGExporter
-            SVGExporter(widget.getPlotItem()).export(fileName=str(path))
+            write_svg(widget, path)
         elif not widget.grab().toImage().save(str(path)):
             raise InputError(f"could not write {path}; check that the folder exists and "
                              f"is writable")
     finally:
         widget.deleteLater()
     return path
+
+
+def write_svg(widget, path) -> None:
+    """Draw ``widget`` into an SVG file through Qt's own SVG painter.
+
+    (pyqtgraph's SVGExporter cannot parse the path data Qt 6.12 writes, so the
+    picture goes through QSvgGenerator; lines and markers stay vectors.)
+    """
+    from PySide6.QtCore import QRect, QSize
+    from PySide6.QtGui import QPainter
+    from PySide6.QtSvg import QSvgGenerator
+    generator = QSvgGenerator()
+    generator.setFileName(str(path))
+    generator.setSize(QSize(widget.width(), widget.height()))
+    generator.setViewBox(QRect(0, 0, widget.width(), widget.height()))
+    generator.setTitle("Slackline fit")
+    painter = QPainter(generator)
+    try:
+        widget.render(painter)
+    finally:
+        painter.end()
 
 
 def parse_size(text: str) -> tuple[int, int]:

@@ -53,7 +53,10 @@ def _kktsolver_factory(Q: np.ndarray, y: np.ndarray, hard: bool):
         # cvxopt's own LAPACK: about 3x faster than scipy's at these sizes
         H = +Q_cvx
         np.asarray(H)[np.diag_indices(m)] += e1 + e2   # a view, no copy
-        lapack.potrf(H)
+        try:
+            lapack.potrf(H)        # raises ArithmeticError: cvxopt then stops gracefully
+        except ValueError as exc:
+            raise ArithmeticError(str(exc)) from None
         Hy_cvx = cvxopt.matrix(y)
         lapack.potrs(H, Hy_cvx)
         Hy = np.array(Hy_cvx).ravel()

@@ -117,7 +117,7 @@ class _Problem:
             e1bz1 = e1 * bz1
             rxi = xv[nv:] - e1bz1 - e2 * bz2
             rhs = xv[:nv] - At @ (e1bz1 + e1 / denom * rxi)
-            v = np.linalg.solve(S, rhs)
+            v = _solve_small(S, rhs)
             Av = A @ v
             xi = (rxi - e1 * Av) / denom
             xv[:nv] = v
@@ -139,10 +139,25 @@ class _Problem:
             xv, zv = _vec(x), _vec(z)
             bz = zv.copy()
             rhs = xv - At @ (e * bz)
-            v = np.linalg.solve(S, rhs)
+            v = _solve_small(S, rhs)
             xv[:] = v
             zv[:] = di * (-(A @ v) - bz)
         return solve
+
+
+def _solve_small(S: np.ndarray, rhs: np.ndarray) -> np.ndarray:
+    """S v = rhs for the (m+1) x (m+1) reduced system.
+
+    cvxopt ends an iteration gracefully (status 'unknown', last iterate kept)
+    on ArithmeticError, so a singular or non-finite S is reported as one.
+    """
+    try:
+        v = np.linalg.solve(S, rhs)
+    except np.linalg.LinAlgError as exc:
+        raise ArithmeticError(f"singular reduced KKT system: {exc}") from None
+    if not np.isfinite(v).all():
+        raise ArithmeticError("non-finite step in the reduced KKT system")
+    return v
 
 
 def check_separable(phi: np.ndarray, y: np.ndarray) -> None:

@@ -35,7 +35,7 @@ MAX_FREE = 150          # currently free variables kept in W
 MAX_ROUNDS = 200
 SUBSAMPLE = 250
 DEBUG = False
-ROOM = 1e-7             # relative distance to a bound that still counts as room
+SNAP = 1e-6             # alphas this close to a bound (relative to C) are put on it
 
 
 def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
@@ -64,8 +64,9 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
     gradient = y * (kernel_matrix(X, X[nonzero]) @ (alpha[nonzero] * y[nonzero])) - 1.0
     tol = max(1e-7, 10 * options.feastol)
     iterations, status, gap, b = 0, "optimal", 0.0, 0.0
+    subset, max_free = SUBSET, MAX_FREE
     for rounds in range(1, MAX_ROUNDS + 1):
-        work, violation = _select(alpha, y, upper, gradient)
+        work, violation = _select(alpha, y, upper, gradient, subset, max_free)
         if DEBUG:
             print(f"round {rounds}: |W| = {len(work)}, violation {violation:.2e}")
         if violation <= tol and rounds > 1:
@@ -83,10 +84,9 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
         decrease = -(gradient[work] @ step + 0.5 * step @ Q_ww @ step)
         gradient += y * (K_w @ (yw * step))
         alpha[work] = a_new
-        # what is left is below the interior-point method's resolution
         stalled = decrease <= 1e-12 * max(1.0, abs(float(alpha @ (gradient - 1.0))) / 2)
         if violation <= tol or stalled:
-            break
+            break  # what is left is below the interior-point method's resolution
     else:
         raise ConvergenceError(f"the working-set solver did not settle after {MAX_ROUNDS} "
                                "rounds; try scaling the features or a smaller C")
@@ -96,29 +96,28 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
                         float(gap) if gap is not None else np.inf)
 
 
-def _select(alpha, y, upper, gradient):
+def _select(alpha, y, upper, gradient, subset, max_free):
     """Working set and the largest KKT violation max_up G - min_down G."""
     G = -y * gradient
-    # room to move below tau * C is the interior-point method's noise, not room
-    room = np.where(np.isfinite(upper), upper, 1.0) * ROOM
-    below_upper = alpha < upper - room
-    above_zero = alpha > room
+    # alphas are snapped onto their bounds after each QP, so exact tests hold
+    below_upper = alpha < upper
+    above_zero = alpha > 0
     can_up = np.where(y > 0, below_upper, above_zero)
     can_down = np.where(y > 0, above_zero, below_upper)
     up_idx, down_idx = np.flatnonzero(can_up), np.flatnonzero(can_down)
     violation = float(G[up_idx].max() - G[down_idx].min())
-    half = SUBSET // 2
+    half = subset // 2
     top_up = up_idx[np.argsort(-G[up_idx])[:half]]
     top_down = down_idx[np.argsort(G[down_idx])[:half]]
     free = np.flatnonzero(above_zero & below_upper)
-    if len(free) > MAX_FREE:  # keep the free ones nearest the current b
+    if len(free) > max_free:  # keep the free ones nearest the current b
         centre = np.median(G[free])
-        free = free[np.argsort(np.abs(G[free] - centre))[:MAX_FREE]]
+        free = free[np.argsort(np.abs(G[free] - centre))[:max_free]]
     work = np.unique(np.concatenate([top_up, top_down, free]))
     return work, violation
 
 
-def _snap(alpha, upper, tau=1e-6):
+def _snap(alpha, upper, tau=SNAP):
     """Values within tau * C of a bound are put on it (tau * max alpha when hard)."""
     scale = np.where(np.isfinite(upper), upper, max(float(alpha.max()), 1.0))
     alpha = np.where(alpha <= tau * scale, 0.0, alpha)

@@ -248,7 +248,8 @@ class Document(QObject):
         self.last_error = None
         self.result_changed.emit()
 
-    def _on_failed(self, message, best):
+    def _on_failed(self, failure):
+        message, best = failure
         self.last_error = message
         if best is not None and self.result is None:
             self.result = best

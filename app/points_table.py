@@ -4,7 +4,9 @@ from __future__ import annotations
 
 import numpy as np
 from PySide6.QtCore import (QAbstractTableModel, QItemSelection, QItemSelectionModel,
-                            QModelIndex, QSortFilterProxyModel, Qt)
+                            QModelIndex, QSortFilterProxyModel, Qt, QTimer)
+
+REFRESH_MS = 120   # new fits reach the table at most this often: the canvas goes first
 from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QHBoxLayout, QHeaderView, QLabel,
                                QTableView, QVBoxLayout, QWidget)
 
@@ -20,8 +22,10 @@ class PointsModel(QAbstractTableModel):
         super().__init__(parent)
         self.document = document
         self._result = None
+        self._refresh = QTimer(self, singleShot=True, interval=REFRESH_MS)
+        self._refresh.timeout.connect(self._result_changed)
         document.points_changed.connect(self._reset)
-        document.result_changed.connect(self._result_changed)
+        document.result_changed.connect(self._refresh.start)
         self._reset()
 
     def _matching_result(self):
@@ -34,6 +38,11 @@ class PointsModel(QAbstractTableModel):
         self.beginResetModel()
         self._result = self._matching_result()
         self.endResetModel()
+
+    def flush(self):
+        """Show the latest result now (tests, exports)."""
+        self._refresh.stop()
+        self._result_changed()
 
     def _result_changed(self):
         self._result = self._matching_result()

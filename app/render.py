@@ -21,6 +21,9 @@ FORMATS = (".png", ".svg")
 def ensure_application():
     """The running QApplication, or a new one (offscreen when there is no display)."""
     from PySide6.QtWidgets import QApplication
+
+    from .qt_guard import guard_refcounts
+    guard_refcounts()
     app = QApplication.instance()
     if app is None:
         from .launch import display_problem

@@ -40,7 +40,9 @@ def run_request(request: _Request):
 class _SolveWorker(QObject):
     """Lives in the worker thread."""
 
-    answered = Signal(int, object, object, object)  # request id, result, message, best
+    # one tuple (request id, result, message, best): PySide6 miscounts references
+    # of None passed as a bare ``object`` argument across threads
+    answered = Signal(object)
 
     def __init__(self, controller: "SolveController"):
         super().__init__()
@@ -52,14 +54,14 @@ class _SolveWorker(QObject):
         if request is None:
             return  # a later wake-up already took it: latest wins
         result, message, best = run_request(request)
-        self.answered.emit(request.request_id, result, message, best)
+        self.answered.emit((request.request_id, result, message, best))
 
 
 class SolveController(QObject):
     """Owned by the Document; the GUI thread only posts requests and reads answers."""
 
     solved = Signal(object)             # FitResult of the latest request
-    failed = Signal(str, object)        # message, best-effort result or None
+    failed = Signal(object)             # (message, best-effort result or None)
     busy_changed = Signal(bool)
     _wake = Signal()
 
@@ -104,8 +106,9 @@ class SolveController(QObject):
             request, self._pending = self._pending, None
         return request
 
-    @Slot(int, object, object, object)
-    def _on_answered(self, request_id, result, message, best):
+    @Slot(object)
+    def _on_answered(self, answer):
+        request_id, result, message, best = answer
         if request_id != self._latest_id:
             return  # stale: a newer request is queued or running
         self._answered_id = request_id
@@ -116,7 +119,7 @@ class SolveController(QObject):
         if result is not None:
             self.solved.emit(result)
         else:
-            self.failed.emit(message, best)
+            self.failed.emit((message, best))
 
     def wait(self, timeout_ms: int) -> bool:
         """Process events until the latest request is answered (tests, headless)."""

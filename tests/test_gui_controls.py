@@ -98,6 +98,7 @@ def test_a_canvas_selection_selects_the_table_row(window, qtbot):
 def test_the_table_filters_points_by_status(window, qtbot):
     load_points(window, qtbot, gauge_points(overlap=True))
     table = window.points_table
+    table.model.flush()
     table.filter.setCurrentIndex(table.filter.findData(ON_MARGIN))
     expected = window.document.result.count(ON_MARGIN)
     assert table.proxy.rowCount() == expected > 0

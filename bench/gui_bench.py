@@ -1,0 +1,123 @@
+"""GUI latency: a C slider step to the redrawn boundary, and event-loop stalls.
+
+    QT_QPA_PLATFORM=offscreen .venv/bin/python -m bench gui_bench
+
+Targets (DESIGN.md): linear, n = 1,000: median <= 33 ms from a slider step to
+the repainted canvas; no event-loop stall over 50 ms while the slider is dragged.
+Invented data: two overlapping Gaussian classes (a demo workload, seeded).
+"""
+
+from __future__ import annotations
+
+import os
+import statistics
+import tempfile
+import time
+
+import numpy as np
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+
+def _points(n, seed=11):
+    from solver.dataset import Dataset
+    rng = np.random.default_rng(seed)
+    half = n // 2
+    X = np.vstack([rng.normal(0, 1.1, (half, 2)) + [1, 1], rng.normal(0, 1.1, (n - half, 2)) - [1, 1]])
+    y = np.r_[np.ones(half, int), -np.ones(n - half, int)]
+    return Dataset.from_points(X, y)
+
+
+def _window():
+    from PySide6.QtCore import QCoreApplication, QSettings
+    from PySide6.QtWidgets import QApplication
+    QSettings.setDefaultFormat(QSettings.IniFormat)
+    QSettings.setPath(QSettings.IniFormat, QSettings.UserScope, tempfile.mkdtemp())
+    QCoreApplication.setOrganizationName("SlacklineBench")
+    QCoreApplication.setApplicationName("SlacklineBench")
+    from app.qt_guard import guard_refcounts
+    guard_refcounts()
+    app = QApplication.instance() or QApplication([])
+    from app.main_window import MainWindow
+    window = MainWindow(quiet=True)
+    window.resize(1280, 800)
+    window.show()
+    app.processEvents()
+    return app, window
+
+
+def _percentile(values, q):
+    return float(np.percentile(np.asarray(values), q))
+
+
+def step_latency(app, window, dataset, config, steps):
+    """ms from slider.setValue to the canvas having drawn the new result and repainted."""
+    window.document.load(dataset, config)
+    window.canvas.fit_view_to_data()
+    window.document.wait_for_solve(600000)
+    app.processEvents()
+    slider = window.controls.slider
+    times = []
+    for position in steps:
+        done = []
+        handler = lambda: done.append(time.perf_counter())  # noqa: E731
+        window.canvas.redrawn.connect(handler)
+        start = time.perf_counter()
+        slider.setValue(position)
+        while not done and time.perf_counter() - start < 120:
+            app.processEvents()
+        window.canvas.redrawn.disconnect(handler)
+        window.canvas.viewport().repaint()     # the paint itself is part of the latency
+        times.append((time.perf_counter() - start) * 1e3)
+    return times
+
+
+def drag_stalls(app, window, dataset, seconds=2.0, step_ms=16):
+    """Longest gap between 5 ms timer ticks while the slider moves every step_ms."""
+    from PySide6.QtCore import QElapsedTimer, QTimer
+    window.document.load(dataset, None)
+    window.document.wait_for_solve(600000)
+    slider = window.controls.slider
+    slider.setSliderDown(True)
+    gaps, clock = [], QElapsedTimer()
+    ticker = QTimer(interval=5)
+    ticker.timeout.connect(lambda: gaps.append(clock.restart()))
+    positions = iter(np.linspace(300, 100, int(seconds * 1000 / step_ms)).astype(int))
+    mover = QTimer(interval=step_ms)
+    mover.timeout.connect(lambda: slider.setValue(next(positions, 100)))
+    clock.start()
+    ticker.start()
+    mover.start()
+    end = time.perf_counter() + seconds
+    while time.perf_counter() < end:
+        app.processEvents()
+        time.sleep(0.0005)
+    mover.stop()
+    ticker.stop()
+    slider.setSliderDown(False)
+    window.document.wait_for_solve(600000)
+    return max(gaps[1:]) if len(gaps) > 1 else float("nan")
+
+
+def main():
+    from solver.config import FitConfig
+    app, window = _window()
+    steps = list(range(300, 240, -2))
+    cases = [("linear, n = 1,000", _points(1000), FitConfig(kernel="linear"), steps, 33.0),
+             ("rbf, n = 500", _points(500), FitConfig(kernel="rbf", gamma=0.5), steps[:8], None)]
+    for name, dataset, config, positions, target in cases:
+        times = step_latency(app, window, dataset, config, positions)
+        median, p95 = statistics.median(times), _percentile(times, 95)
+        verdict = "" if target is None else ("  OK" if median <= target else f"  over {target} ms")
+        print(f"slider step -> redrawn boundary, {name}: median {median:.1f} ms, "
+              f"p95 {p95:.1f} ms over {len(times)} steps{verdict}", flush=True)
+    stall = drag_stalls(app, window, _points(1000))
+    verdict = "OK" if stall <= 50 else "over 50 ms"
+    print(f"longest event-loop stall while dragging C (linear, n = 1,000): {stall:.0f} ms "
+          f"{verdict}", flush=True)
+    window.recovery.timer.stop()
+    window.document.shutdown()
+
+
+if __name__ == "__main__":
+    main()

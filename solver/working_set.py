@@ -34,6 +34,8 @@ SUBSET = 120            # violators per round (half from each side)
 MAX_FREE = 150          # currently free variables kept in W
 MAX_ROUNDS = 200
 SUBSAMPLE = 250
+SUBSAMPLE_SHARE = 0.25
+C_SCALE = lambda n, m: 1.0  # noqa: E731
 DEBUG = False
 SNAP = 1e-6             # alphas this close to a bound (relative to C) are put on it
 
@@ -90,8 +92,8 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
     else:
         raise ConvergenceError(f"the working-set solver did not settle after {MAX_ROUNDS} "
                                "rounds; try scaling the features or a smaller C")
-    support = np.flatnonzero(alpha > 0)
-    decision = kernel_matrix(X, X[support]) @ (alpha[support] * y[support]) + b
+    # (Q a)_i = g_i + 1 = y_i sum_j alpha_j y_j k_ij, so f_i = y_i (g_i + 1) + b
+    decision = y * (gradient + 1.0) + b
     return DualSolution(alpha, b, decision, iterations, rounds, int(len(work)), status,
                         float(gap) if gap is not None else np.inf)
 
@@ -156,15 +158,21 @@ def _solve_all(X, y, upper, kernel_matrix, options, hard) -> DualSolution:
 
 
 def _margins_from_subsample(X, y, upper, kernel_matrix, options, hard):
-    """y f(x) on all points from a fit on a seeded, stratified subsample."""
+    """y f(x) on all points from a fit on a seeded, stratified subsample.
+
+    The subsample holds a share SUBSAMPLE_SHARE of the points (at least
+    SUBSAMPLE) and is solved the same way, so each level guesses the next.
+    """
     rng = np.random.default_rng(0)
+    size = max(SUBSAMPLE, int(SUBSAMPLE_SHARE * len(y)))
     picks = []
     for sign in (-1, 1):
         members = np.flatnonzero(y == sign)
-        share = max(2, int(round(SUBSAMPLE * len(members) / len(y))))
+        share = max(2, int(round(size * len(members) / len(y))))
         picks.append(rng.choice(members, size=min(share, len(members)), replace=False))
     sub = np.sort(np.concatenate(picks))
-    sol = _solve_all(X[sub], y[sub], upper[sub], kernel_matrix, options, hard)
+    penalties = np.where(hard, np.inf, upper[sub] * C_SCALE(len(y), len(sub)))
+    sol = solve_dual(X[sub], y[sub], penalties, kernel_matrix, options)
     support = np.flatnonzero(sol.alpha > 0)
     decision = kernel_matrix(X, X[sub][support]) @ (sol.alpha[support] * y[sub][support]) + sol.b
     return y * decision

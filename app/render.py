@@ -44,7 +44,6 @@ def _plot_widget(dataset, result, width, height, pinned=None):
     widget = pg.PlotWidget(background=palette()["background"])
     widget.resize(width, height)
     plot = widget.getPlotItem()
-    plot.showGrid(x=True, y=True, alpha=0.15)
     axis_colour = palette()["axis"]
     for name in ("left", "bottom"):
         plot.getAxis(name).setPen(pg.mkPen(axis_colour))

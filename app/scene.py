@@ -19,15 +19,21 @@ LINEAR_GRID = 64    # linear f is a plane: a coarse shading grid is exact enough
 SHADE_LIMIT = 2.0   # f is shaded from -2 to +2; beyond, the colour saturates
 
 
+SHADE_STRENGTH = 0.45   # how far the shading goes from white towards a class colour
+
+
 def _shade_lookup() -> np.ndarray:
-    """A diverging table: negative class colour -> white -> positive class colour."""
+    """A diverging table: negative class colour -> white -> positive class colour.
+
+    The light tint is baked into the table (instead of an item opacity, which
+    makes Qt compose a layer on every paint and cost ~10 ms per frame)."""
     colours = palette()
     neg = np.array(pg.mkColor(colours["shade_negative"]).getRgb()[:3], dtype=float)
     pos = np.array(pg.mkColor(colours["shade_positive"]).getRgb()[:3], dtype=float)
     white = np.array([255.0, 255.0, 255.0])
-    t = np.linspace(-1, 1, 256)[:, None]
+    t = SHADE_STRENGTH * np.linspace(-1, 1, 256)[:, None]
     table = np.where(t < 0, white + (neg - white) * -t, white + (pos - white) * t)
-    return table.astype(np.ubyte)
+    return np.rint(table).astype(np.ubyte)
 
 
 def _pass_clicks(item):
@@ -43,7 +49,6 @@ class SceneItems:
         self.plot = plot
         self.result = None
         self.shade = pg.ImageItem(lut=_shade_lookup(), levels=(-SHADE_LIMIT, SHADE_LIMIT))
-        self.shade.setOpacity(0.45)
         self.shade.setZValue(-20)
         plot.addItem(self.shade, ignoreBounds=True)
 

@@ -57,16 +57,19 @@ def step_latency(app, window, dataset, config, steps):
     window.document.wait_for_solve(600000)
     app.processEvents()
     slider = window.controls.slider
+    from PySide6.QtCore import QEventLoop, QTimer
     times = []
     for position in steps:
-        done = []
-        handler = lambda: done.append(time.perf_counter())  # noqa: E731
-        window.canvas.redrawn.connect(handler)
+        # a real event loop that sleeps between events, as the application's
+        # does; a loop spinning processEvents() would starve the solver thread
+        # of the GIL and measure that instead
+        loop = QEventLoop()
+        window.canvas.redrawn.connect(loop.quit)
+        QTimer.singleShot(120_000, loop.quit)
         start = time.perf_counter()
         slider.setValue(position)
-        while not done and time.perf_counter() - start < 120:
-            app.processEvents()
-        window.canvas.redrawn.disconnect(handler)
+        loop.exec()
+        window.canvas.redrawn.disconnect(loop.quit)
         window.canvas.viewport().repaint()     # the paint itself is part of the latency
         times.append((time.perf_counter() - start) * 1e3)
     return times

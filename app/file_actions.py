@@ -90,7 +90,7 @@ class FileActions(QObject):
             return False
         self.document.load(experiment.dataset, experiment.config, path=path,
                            note=experiment.note)
-        self.canvas.fit_view_to_data()
+        self.window.match_axes_to_data()
         self._add_recent(path)
         self._remember_folder(path)
         self.window.statusBar().showMessage(f"opened {path.name}", 5000)
@@ -108,7 +108,7 @@ class FileActions(QObject):
         if dialog.exec() != ImportDialog.Accepted or dialog.dataset is None:
             return False
         self.document.replace_points(dialog.dataset, f"import {Path(path).name}")
-        self.canvas.fit_view_to_data()
+        self.window.match_axes_to_data()
         self._remember_folder(path)
         return True
 

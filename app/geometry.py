@@ -160,3 +160,13 @@ def contour_segments(values, xs, ys, level: float) -> np.ndarray:
             pair = np.stack([points[four, a], points[four, b]], axis=1).reshape(-1, 2)
             segments.append(pair)
     return np.concatenate(segments) if segments else np.zeros((0, 2))
+
+
+def comparable_spans(X, factor: float = 4.0) -> bool:
+    """True when the two features span ranges within ``factor`` of each other,
+    so equal axis scales keep both readable (and w visibly perpendicular)."""
+    if len(X) < 2:
+        return True
+    spans = X.max(axis=0) - X.min(axis=0)
+    small, large = float(min(spans)), float(max(spans))
+    return small > 0 and large / small <= factor

@@ -73,8 +73,6 @@ def launch_window(argv) -> int:
     from PySide6.QtWidgets import QApplication
 
     from .main_window import MainWindow
-    from .qt_guard import guard_refcounts
-    guard_refcounts()
     QCoreApplication.setOrganizationName("Slackline")
     QCoreApplication.setApplicationName("Slackline")
     app = QApplication.instance() or QApplication([sys.argv[0], *qt_args])

@@ -11,6 +11,7 @@ from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QMenu, QMessage
                                QProgressBar, QScrollArea)
 
 from .about import show_about
+from . import geometry
 from .canvas import Canvas
 from .controls import Controls
 from .document import Document
@@ -196,6 +197,14 @@ class MainWindow(QMainWindow):
             self.fit_state.setText("stale fit")
 
     # -- session ------------------------------------------------------------------------
+    def match_axes_to_data(self):
+        """Equal axis scales when the features span similar ranges, else free;
+        the View menu's switch overrides it until the next file."""
+        equal = geometry.comparable_spans(self.document.X)
+        self.equal_axes_action.setChecked(equal)
+        self.canvas.set_equal_axes(equal)
+        self.canvas.fit_view_to_data()
+
     def _restore_settings(self):
         settings = QSettings()
         geometry = settings.value("window/geometry")

@@ -22,8 +22,6 @@ def ensure_application():
     """The running QApplication, or a new one (offscreen when there is no display)."""
     from PySide6.QtWidgets import QApplication
 
-    from .qt_guard import guard_refcounts
-    guard_refcounts()
     app = QApplication.instance()
     if app is None:
         from .launch import display_problem
@@ -52,7 +50,7 @@ def _plot_widget(dataset, result, width, height, pinned=None):
     plot.setLabel("bottom", axis_title(dataset, 0))
     plot.setLabel("left", axis_title(dataset, 1))
     view = plot.getViewBox()
-    view.setAspectLocked(True)
+    view.setAspectLocked(geometry.comparable_spans(dataset.X))   # as the window does
     view.disableAutoRange()
     widget.ensurePolished()
     QApplication.sendPostedEvents()

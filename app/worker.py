@@ -8,7 +8,9 @@ on arrival, so the screen never shows a fit of points that are gone.
 
 from __future__ import annotations
 
+import atexit
 import threading
+import weakref
 
 from PySide6.QtCore import QObject, QThread, Signal, Slot
 
@@ -57,6 +59,15 @@ class _SolveWorker(QObject):
         self.answered.emit((request.request_id, result, message, best))
 
 
+def _shutdown_at_exit(controller_ref):
+    controller = controller_ref()
+    if controller is not None:
+        try:
+            controller.shutdown()
+        except RuntimeError:  # the C++ object is already gone
+            pass
+
+
 class SolveController(QObject):
     """Owned by the Document; the GUI thread only posts requests and reads answers."""
 
@@ -81,6 +92,9 @@ class SolveController(QObject):
             self._wake.connect(self._worker.take_pending)
             self._worker.answered.connect(self._on_answered)
             self._thread.start()
+            # a script that ends without closing the window must not abort in
+            # QThread's destructor ("Destroyed while thread is still running")
+            atexit.register(_shutdown_at_exit, weakref.ref(self))
 
     @property
     def busy(self) -> bool:

@@ -35,8 +35,6 @@ def _window():
     QSettings.setPath(QSettings.IniFormat, QSettings.UserScope, tempfile.mkdtemp())
     QCoreApplication.setOrganizationName("SlacklineBench")
     QCoreApplication.setApplicationName("SlacklineBench")
-    from app.qt_guard import guard_refcounts
-    guard_refcounts()
     app = QApplication.instance() or QApplication([])
     from app.main_window import MainWindow
     window = MainWindow(quiet=True)

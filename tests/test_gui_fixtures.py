@@ -11,10 +11,8 @@ pytest.importorskip("pytestqt")
 
 from PySide6.QtCore import QCoreApplication, QSettings  # noqa: E402
 
-from app.qt_guard import guard_refcounts  # noqa: E402
 from solver.dataset import Dataset  # noqa: E402
 
-guard_refcounts()  # PySide6 6.12.0 drops references to True/None on every signal
 
 
 @pytest.fixture

@@ -58,6 +58,8 @@ def step_latency(app, window, dataset, config, steps):
     from PySide6.QtCore import QEventLoop, QTimer
     times = []
     for position in steps:
+        if position == slider.value():
+            continue  # no change, no solve: it would only wait for the time-out
         # a real event loop that sleeps between events, as the application's
         # does; a loop spinning processEvents() would starve the solver thread
         # of the GIL and measure that instead

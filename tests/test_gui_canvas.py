@@ -1,7 +1,7 @@
 """The canvas: clicks and drags edit points, and the drawn items show the solver's fit."""
 
 import numpy as np
-from PySide6.QtCore import Qt
+from PySide6.QtCore import QPoint, Qt
 
 from solver.config import FitConfig
 
@@ -47,6 +47,13 @@ def test_dragging_a_point_moves_it_and_one_undo_puts_it_back(window, qtbot):
     for t in np.linspace(0.2, 1.0, 5):
         qtbot.mouseMove(canvas, start + (end - start) * t)
         qtbot.wait(15)  # pyqtgraph drops moves closer than 10 ms apart
+    # under load a queued move can still land within 10 ms of the one before
+    # and be dropped: settle, then repeat the last move before letting go
+    qtbot.wait(40)
+    qtbot.mouseMove(canvas, end + QPoint(1, 0))
+    qtbot.wait(40)
+    qtbot.mouseMove(canvas, end)
+    qtbot.wait(40)
     qtbot.mouseRelease(canvas, Qt.LeftButton, Qt.NoModifier, end)
     settle(window, qtbot)
     assert np.allclose(window.document.X[0], [0.5, 2.8], atol=0.03)

@@ -94,6 +94,11 @@ class MainWindow(QMainWindow):
         self.busy_indicator.setMaximumSize(70, 12)
         self.busy_indicator.setTextVisible(False)
         self.busy_indicator.setToolTip("solving\u2026")
+        # keep its room when hidden: a status bar that changes height re-lays
+        # out the window and repaints the whole canvas during every solve
+        policy = self.busy_indicator.sizePolicy()
+        policy.setRetainSizeWhenHidden(True)
+        self.busy_indicator.setSizePolicy(policy)
         self.busy_indicator.hide()
         self.fit_state = QLabel()
         self.statusBar().addPermanentWidget(self.fit_state)

@@ -1,7 +1,7 @@
 """The canvas: clicks and drags edit points, and the drawn items show the solver's fit."""
 
 import numpy as np
-from PySide6.QtCore import QPoint, Qt
+from PySide6.QtCore import Qt
 
 from solver.config import FitConfig
 
@@ -46,17 +46,14 @@ def test_dragging_a_point_moves_it_and_one_undo_puts_it_back(window, qtbot):
     qtbot.mousePress(canvas, Qt.LeftButton, Qt.NoModifier, start)
     for t in np.linspace(0.2, 1.0, 5):
         qtbot.mouseMove(canvas, start + (end - start) * t)
-        qtbot.wait(15)  # pyqtgraph drops moves closer than 10 ms apart
-    # under load a queued move can still land within 10 ms of the one before
-    # and be dropped: settle, then repeat the last move before letting go
-    qtbot.wait(40)
-    qtbot.mouseMove(canvas, end + QPoint(1, 0))
-    qtbot.wait(40)
-    qtbot.mouseMove(canvas, end)
-    qtbot.wait(40)
+        qtbot.wait(30)  # pyqtgraph drops moves closer than 10 ms apart
+    qtbot.wait(60)
     qtbot.mouseRelease(canvas, Qt.LeftButton, Qt.NoModifier, end)
     settle(window, qtbot)
-    assert np.allclose(window.document.X[0], [0.5, 2.8], atol=0.03)
+    # the point lands where the mouse let go, to within the 2 px a dropped
+    # last move can leave under load (pyqtgraph rate-limits moves)
+    landed = window.canvas.pixel_of(*window.document.X[0])
+    assert (landed - end).manhattanLength() <= 2
     window.document.undo_stack.undo()
     assert np.array_equal(window.document.X[0], data.X[0])
 
@@ -70,7 +67,7 @@ def test_ctrl_drag_box_selects_the_points_inside(window, qtbot):
     qtbot.mousePress(canvas, Qt.LeftButton, Qt.ControlModifier, a)
     for t in np.linspace(0.25, 1.0, 4):
         qtbot.mouseMove(canvas, a + (b - a) * t)
-        qtbot.wait(15)
+        qtbot.wait(30)
     qtbot.mouseRelease(canvas, Qt.LeftButton, Qt.ControlModifier, b)
     inside = {i for i, (x, y) in enumerate(data.X) if 0.2 <= x <= 2.2 and 0.2 <= y <= 2.2}
     assert inside and window.document.selection == inside

@@ -159,6 +159,17 @@ class PointsTable(QWidget):
         self.view.selectionModel().selectionChanged.connect(self._table_selected)
         document.selection_changed.connect(self._document_selected)
         self.model.modelReset.connect(self._document_selected)
+        self.model.modelReset.connect(self._fit_headers)
+        self._fit_headers()
+
+    def _fit_headers(self):
+        """Feature columns as wide as their names (with units), so none is cut."""
+        header = self.view.horizontalHeader()
+        metrics = header.fontMetrics()
+        for column in (1, 2):
+            text = str(self.model.headerData(column, Qt.Horizontal))
+            header.resizeSection(column, max(header.defaultSectionSize(),
+                                             metrics.horizontalAdvance(text) + 24))
 
     def _fit_values_changed(self, *_):
         if self.proxy.status is not None or self.proxy.sortColumn() >= 4:

@@ -149,6 +149,21 @@ class SceneItems:
             self.rings.setData([], [])
             self.slack.setData([], [])
         self._draw_weight(result, X)
+        self._legend_lists_weight(result.w is not None)
+
+    def _legend_lists_weight(self, show: bool):
+        """Kernel fits draw no w, so their legend does not list it."""
+        if self.legend is None:
+            return
+        listed = any(sample.item is self.weight for sample, _ in self.legend.items)
+        if show == listed:
+            return
+        self.legend.removeItem(self.slack)       # keep the order: ..., w, slack
+        if listed:
+            self.legend.removeItem(self.weight)
+        else:
+            self.legend.addItem(self.weight, self.weight.name())
+        self.legend.addItem(self.slack, self.slack.name())
 
     def set_pinned(self, pinned, rect):
         if pinned is None:

@@ -5,23 +5,16 @@ import math
 import numpy as np
 import pytest
 
+from demo_data import pilot_batch_points
 from solver.compare import compare
 from solver.config import FitConfig
 from solver.crossval import cross_validate, make_folds
 from solver.fit import fit
 
 
-def pilot_batch(n=30, seed=3):
-    """Invented demo data: two gauge readings on a pilot batch of parts, pass (+1) / fail (-1)."""
-    rng = np.random.default_rng(seed)
-    half = n // 2
-    X = np.r_[rng.normal([2.0, 1.0], 0.6, (half, 2)), rng.normal([3.2, 2.0], 0.6, (n - half, 2))]
-    return X, np.r_[np.ones(half, int), -np.ones(n - half, int)]
-
-
 @pytest.fixture(scope="module")
 def two_fits():
-    X, y = pilot_batch()
+    X, y = pilot_batch_points()
     return fit(X, y, FitConfig(C=10.0)), fit(X, y, FitConfig(C=0.05))
 
 
@@ -84,7 +77,7 @@ def test_the_table_holds_margin_width_b_and_training_error_of_both(two_fits):
 
 def test_the_table_shows_cv_error_once_both_estimates_are_given(two_fits):
     before, after = two_fits
-    X, y = pilot_batch()
+    X, y = pilot_batch_points()
     cv_before = cross_validate(X, y, before.config, folds=3)
     cv_after = cross_validate(X, y, after.config, folds=3)
     rows = {q.name: q for q in compare(before, after, cv_before, cv_after).quantities}
@@ -92,7 +85,7 @@ def test_the_table_shows_cv_error_once_both_estimates_are_given(two_fits):
 
 
 def test_points_that_differ_are_matched_by_coordinates_and_label():
-    X, y = pilot_batch()
+    X, y = pilot_batch_points()
     before = fit(X, y, FitConfig(C=1.0))
     keep = np.r_[0:10, 11:len(y)]                       # drop point 10
     X_new = np.r_[X[keep][::-1], [[2.5, 1.5]]]         # reverse the order, add one point
@@ -106,7 +99,7 @@ def test_points_that_differ_are_matched_by_coordinates_and_label():
 
 
 def test_a_relabelled_point_counts_as_removed_and_added():
-    X, y = pilot_batch()
+    X, y = pilot_batch_points()
     flipped = y.copy()
     flipped[0] = -flipped[0]
     comparison = compare(fit(X, y, FitConfig()), fit(X, flipped, FitConfig()))
@@ -115,7 +108,7 @@ def test_a_relabelled_point_counts_as_removed_and_added():
 
 def test_the_quick_cv_estimate_matches_scikit_learn_svc_on_the_same_folds():
     from sklearn.svm import SVC
-    X, y = pilot_batch()
+    X, y = pilot_batch_points()
     estimate = cross_validate(X, y, FitConfig(C=10.0), folds=3, seed=1)
     errors = []
     for train, test in make_folds(y, 3, seed=1):

@@ -2,9 +2,9 @@
 
 import re
 
-import numpy as np
 import pytest
 
+from demo_data import pilot_batch_points
 from solver.compare import compare
 from solver.config import FitConfig
 from solver.crossval import CVEstimate
@@ -15,17 +15,9 @@ from solver.result import INSIDE, MISCLASSIFIED
 NUMBER = r"-?\d+(?:\.\d+)?(?:e[+-]?\d+)?"
 
 
-def pilot_batch(n=30, seed=3):
-    """Invented demo data: two gauge readings on a pilot batch of parts, pass (+1) / fail (-1)."""
-    rng = np.random.default_rng(seed)
-    half = n // 2
-    X = np.r_[rng.normal([2.0, 1.0], 0.6, (half, 2)), rng.normal([3.2, 2.0], 0.6, (n - half, 2))]
-    return X, np.r_[np.ones(half, int), -np.ones(n - half, int)]
-
-
 @pytest.fixture(scope="module")
 def lowered():
-    X, y = pilot_batch()
+    X, y = pilot_batch_points()
     return compare(fit(X, y, FitConfig(C=10.0)), fit(X, y, FitConfig(C=0.5)))
 
 
@@ -77,21 +69,21 @@ def test_cv_errors_appear_as_percentages_when_known(lowered):
 
 
 def test_added_points_are_named_as_the_cause():
-    X, y = pilot_batch()
+    X, y = pilot_batch_points()
     before = fit(X[:-2], y[:-2], FitConfig(C=1.0))
     after = fit(X, y, FitConfig(C=1.0))
     assert summary(compare(before, after)).startswith("Adding 2 points ")
 
 
 def test_a_kernel_change_says_the_margin_is_in_the_feature_space():
-    X, y = pilot_batch(16)
+    X, y = pilot_batch_points(16)
     text = summary(compare(fit(X, y, FitConfig()), fit(X, y, FitConfig(kernel="rbf"))))
     assert text.startswith("Changing the kernel from linear to rbf")
     assert "in the kernel's feature space" in text and "turned" not in text
 
 
 def test_the_same_fit_twice_says_nothing_moved():
-    X, y = pilot_batch()
+    X, y = pilot_batch_points()
     result = fit(X, y, FitConfig())
     text = summary(compare(result, result))
     assert "left the margin width at" in text and "did not turn" in text

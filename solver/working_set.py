@@ -35,7 +35,6 @@ MAX_FREE = 150          # currently free variables kept in W
 MAX_ROUNDS = 200
 SUBSAMPLE = 250
 SUBSAMPLE_SHARE = 0.25
-C_SCALE = lambda n, m: 1.0  # noqa: E731
 DEBUG = False
 SNAP = 1e-6             # alphas this close to a bound (relative to C) are put on it
 
@@ -66,9 +65,8 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
     gradient = y * (kernel_matrix(X, X[nonzero]) @ (alpha[nonzero] * y[nonzero])) - 1.0
     tol = max(1e-7, 10 * options.feastol)
     iterations, status, gap, b = 0, "optimal", 0.0, 0.0
-    subset, max_free = SUBSET, MAX_FREE
     for rounds in range(1, MAX_ROUNDS + 1):
-        work, violation = _select(alpha, y, upper, gradient, subset, max_free)
+        work, violation = _select(alpha, y, upper, gradient)
         if DEBUG:
             print(f"round {rounds}: |W| = {len(work)}, violation {violation:.2e}")
         if violation <= tol and rounds > 1:
@@ -98,7 +96,7 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
                         float(gap) if gap is not None else np.inf)
 
 
-def _select(alpha, y, upper, gradient, subset, max_free):
+def _select(alpha, y, upper, gradient):
     """Working set and the largest KKT violation max_up G - min_down G."""
     G = -y * gradient
     # alphas are snapped onto their bounds after each QP, so exact tests hold
@@ -108,13 +106,13 @@ def _select(alpha, y, upper, gradient, subset, max_free):
     can_down = np.where(y > 0, above_zero, below_upper)
     up_idx, down_idx = np.flatnonzero(can_up), np.flatnonzero(can_down)
     violation = float(G[up_idx].max() - G[down_idx].min())
-    half = subset // 2
+    half = SUBSET // 2
     top_up = up_idx[np.argsort(-G[up_idx])[:half]]
     top_down = down_idx[np.argsort(G[down_idx])[:half]]
     free = np.flatnonzero(above_zero & below_upper)
-    if len(free) > max_free:  # keep the free ones nearest the current b
+    if len(free) > MAX_FREE:  # keep the free ones nearest the current b
         centre = np.median(G[free])
-        free = free[np.argsort(np.abs(G[free] - centre))[:max_free]]
+        free = free[np.argsort(np.abs(G[free] - centre))[:MAX_FREE]]
     work = np.unique(np.concatenate([top_up, top_down, free]))
     return work, violation
 
@@ -171,7 +169,9 @@ def _margins_from_subsample(X, y, upper, kernel_matrix, options, hard):
         share = max(2, int(round(size * len(members) / len(y))))
         picks.append(rng.choice(members, size=min(share, len(members)), replace=False))
     sub = np.sort(np.concatenate(picks))
-    penalties = np.where(hard, np.inf, upper[sub] * C_SCALE(len(y), len(sub)))
+    # C unscaled: for RBF, scaling it by n/m made the guess worse (correlation
+    # with the final margins 0.90 against 0.95 at n = 1,000)
+    penalties = np.where(hard, np.inf, upper[sub])
     sol = solve_dual(X[sub], y[sub], penalties, kernel_matrix, options)
     support = np.flatnonzero(sol.alpha > 0)
     decision = kernel_matrix(X, X[sub][support]) @ (sol.alpha[support] * y[sub][support]) + sol.b

@@ -17,9 +17,9 @@ from pathlib import Path
 import numpy as np
 
 from solver import FitConfig, fit
-from solver.dataset import load_table
-from solver.experiment import load_experiment, save_experiment
-from solver.exports import write_model_card, write_points_csv
+from solver.files.dataset import load_table
+from solver.files.experiment import load_experiment, save_experiment
+from solver.files.exports import write_model_card, write_points_csv
 
 
 def _median_ms(action, repeats: int = 5) -> float:

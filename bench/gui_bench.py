@@ -20,7 +20,7 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 
 def _points(n, seed=11):
-    from solver.dataset import Dataset
+    from solver.files.dataset import Dataset
     rng = np.random.default_rng(seed)
     half = n // 2
     X = np.vstack([rng.normal(0, 1.1, (half, 2)) + [1, 1], rng.normal(0, 1.1, (n - half, 2)) - [1, 1]])
@@ -36,7 +36,7 @@ def _window():
     QCoreApplication.setOrganizationName("SlacklineBench")
     QCoreApplication.setApplicationName("SlacklineBench")
     app = QApplication.instance() or QApplication([])
-    from app.main_window import MainWindow
+    from app.window.main_window import MainWindow
     window = MainWindow(quiet=True)
     window.resize(1280, 800)
     window.show()

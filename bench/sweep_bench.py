@@ -14,7 +14,7 @@ import time
 import numpy as np
 
 from solver.config import FitConfig
-from solver.sweep import SweepSettings, run_sweep
+from solver.study.sweep import SweepSettings, run_sweep
 
 WORKLOADS = [("linear", 1000, FitConfig(kernel="linear")),
              ("rbf", 500, FitConfig(kernel="rbf", gamma=0.5))]

@@ -15,8 +15,8 @@ from pathlib import Path
 import numpy as np
 
 from solver import FitConfig, fit
-from solver.dataset import load_table
-from solver.experiment import save_experiment
+from solver.files.dataset import load_table
+from solver.files.experiment import save_experiment
 
 HERE = Path(__file__).resolve().parent
 

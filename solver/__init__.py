@@ -4,12 +4,12 @@
     result = fit(X, y, FitConfig(C=1.0))
 """
 
-from .config import FitConfig, SolverOptions
-from .errors import (ConvergenceError, FileFormatError, InputError, NotSeparableError,
+from solver.config import FitConfig, SolverOptions
+from solver.errors import (ConvergenceError, FileFormatError, InputError, NotSeparableError,
                      SlacklineError)
-from .fit import fit, validate_points
-from .model import DecisionModel
-from .result import STATUS_TEXT, STATUSES, FitResult, KKTResiduals
+from solver.fit import fit, validate_points
+from solver.model import DecisionModel
+from solver.result import STATUS_TEXT, STATUSES, FitResult, KKTResiduals
 
 __version__ = "0.1.0"
 

@@ -8,7 +8,7 @@ from __future__ import annotations
 import math
 from dataclasses import asdict, dataclass, field, replace
 
-from .errors import InputError
+from solver.errors import InputError
 
 KERNELS = ("linear", "poly", "rbf")
 SCALINGS = ("none", "standard", "minmax")

@@ -6,13 +6,14 @@ import time
 
 import numpy as np
 
-from . import kernels, scaling
-from .config import FitConfig
-from .errors import ConvergenceError, InputError
-from .model import DecisionModel
-from .primal_working_set import solve_primal
-from .working_set import solve_dual
-from .result import (INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, FitResult,
+from solver import scaling
+from solver import kernels
+from solver.config import FitConfig
+from solver.errors import ConvergenceError, InputError
+from solver.model import DecisionModel
+from solver.qp.primal_solver import solve_primal
+from solver.qp.dual_solver import solve_dual
+from solver.result import (INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, FitResult,
                      KKTResiduals)
 
 

@@ -12,7 +12,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from . import kernels, scaling
+from solver import scaling
+from solver import kernels
 
 _CHUNK = 20_000  # rows per block when evaluating an RBF expansion
 

@@ -7,8 +7,8 @@ from functools import cached_property
 
 import numpy as np
 
-from .config import FitConfig
-from .model import DecisionModel
+from solver.config import FitConfig
+from solver.model import DecisionModel
 
 # Per-point status codes (stable: they appear in files) and their wording.
 OUTSIDE = "outside"
@@ -113,7 +113,7 @@ class FitResult:
         """Weight vector in the user's original units (linear kernel only)."""
         if self.config.kernel != "linear":
             return None
-        from .scaling import weights_in_original_units
+        from solver.scaling import weights_in_original_units
         w, _ = weights_in_original_units(self.model.feature_weights, self.model.b,
                                          self.model.shift, self.model.scale)
         return _frozen(w)
@@ -123,7 +123,7 @@ class FitResult:
         """Intercept of f in the user's original units."""
         if self.config.kernel != "linear":
             return self.model.b
-        from .scaling import weights_in_original_units
+        from solver.scaling import weights_in_original_units
         _, b = weights_in_original_units(self.model.feature_weights, self.model.b,
                                          self.model.shift, self.model.scale)
         return b

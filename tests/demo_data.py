@@ -2,7 +2,7 @@
 
 import numpy as np
 
-from solver.dataset import Dataset
+from solver.files.dataset import Dataset
 
 
 def pilot_batch_points(n=30, seed=3):

@@ -4,12 +4,14 @@ import json
 import shutil
 from pathlib import Path
 
+from solver.files.bundled import samples
+
 import pytest
 
-from app.cli import main
-from solver.experiment import content_checksum
+from cli.main import main
+from solver.files.experiment import content_checksum
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(str(samples()))  # the bundled samples, as the installed program finds them
 EXPERIMENTS = sorted(SAMPLES.glob("*.experiment.json"))
 
 

@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 from sklearn.svm import SVC
 
-from app.cli import main
+from cli.main import main
 
 GAUGES = """gauge_a,gauge_b,result
 1.0,2.0,pass

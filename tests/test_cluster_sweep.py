@@ -4,7 +4,7 @@ import numpy as np
 import pytest
 
 from solver.config import FitConfig
-from solver.sweep import SweepSettings, run_sweep
+from solver.study.sweep import SweepSettings, run_sweep
 
 distributed = pytest.importorskip("distributed")
 

@@ -6,9 +6,9 @@ import numpy as np
 import pytest
 
 from demo_data import pilot_batch_points
-from solver.compare import compare
+from solver.study.compare import compare
 from solver.config import FitConfig
-from solver.crossval import cross_validate, make_folds
+from solver.study.crossval import cross_validate, make_folds
 from solver.fit import fit
 
 

@@ -6,8 +6,8 @@ from solver.config import FitConfig
 from demo_data import pilot_batch
 
 pytest.importorskip("pytestqt")
-from app.compare_panel import ComparePanel  # noqa: E402
-from app.document import Document  # noqa: E402
+from app.panels.compare import ComparePanel  # noqa: E402
+from app.document.document import Document  # noqa: E402
 
 
 @pytest.fixture

@@ -5,11 +5,11 @@ import re
 import pytest
 
 from demo_data import pilot_batch_points
-from solver.compare import compare
+from solver.study.compare import compare
 from solver.config import FitConfig
-from solver.crossval import CVEstimate
+from solver.study.crossval import CVEstimate
 from solver.fit import fit
-from solver.narrative import summary
+from solver.study.narrative import summary
 from solver.result import INSIDE, MISCLASSIFIED
 
 NUMBER = r"-?\d+(?:\.\d+)?(?:e[+-]?\d+)?"

@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 
-from solver.dataset import Dataset, load_table, preview_table, sign_mapping, split_unit
+from solver.files.dataset import Dataset, load_table, preview_table, sign_mapping, split_unit
 from solver.errors import FileFormatError, InputError
 
 

@@ -11,9 +11,9 @@ import numpy as np
 import pytest
 
 from solver import FitConfig, fit
-from solver.atomic import atomic_open
-from solver.dataset import Dataset
-from solver.experiment import load_experiment, save_experiment
+from solver.files.atomic import atomic_open
+from solver.files.dataset import Dataset
+from solver.files.experiment import load_experiment, save_experiment
 
 X = np.array([[0.0, 0.0], [1.0, 0.2], [3.0, 3.1], [4.0, 2.9]])
 Y = np.array([-1, -1, 1, 1])
@@ -30,7 +30,7 @@ def test_a_writer_killed_mid_write_leaves_the_old_file_intact(old_experiment):
     before = old_experiment.read_bytes()
     script = textwrap.dedent("""
         import sys, time
-        from solver.atomic import atomic_open
+        from solver.files.atomic import atomic_open
         with atomic_open(sys.argv[1], "w") as stream:
             stream.write('{"points": [' + '[1.5, 2.5], ' * 200000)
             stream.flush()
@@ -54,8 +54,8 @@ def test_a_saver_killed_at_any_moment_leaves_a_loadable_experiment(old_experimen
         import sys
         import numpy as np
         from solver import FitConfig, fit
-        from solver.dataset import Dataset
-        from solver.experiment import save_experiment
+        from solver.files.dataset import Dataset
+        from solver.files.experiment import save_experiment
         rng = np.random.default_rng(3)
         X = np.r_[rng.normal(0, 1, (4000, 2)), rng.normal(3, 1, (4000, 2))]
         y = np.r_[-np.ones(4000, int), np.ones(4000, int)]

@@ -6,9 +6,9 @@ import numpy as np
 import pytest
 
 from solver import FitConfig, fit
-from solver.dataset import Dataset, load_table
+from solver.files.dataset import Dataset, load_table
 from solver.errors import FileFormatError, InputError
-from solver.experiment import (content_checksum, experiment_from_dict, experiment_to_dict,
+from solver.files.experiment import (content_checksum, experiment_from_dict, experiment_to_dict,
                                load_experiment, save_experiment)
 
 # Invented demo points: two gauge readings on six parts, pass (+1) / fail (-1).
@@ -181,12 +181,12 @@ def test_an_unknown_format_name_is_refused():
 def test_the_schema_itself_is_valid_draft_2020_12():
     from jsonschema import Draft202012Validator
 
-    from solver.schema_check import experiment_schema
+    from solver.files.schema_check import experiment_schema
     Draft202012Validator.check_schema(experiment_schema())
 
 
 def test_the_schema_names_every_fit_setting():
-    from solver.schema_check import experiment_schema
+    from solver.files.schema_check import experiment_schema
     config = experiment_schema()["properties"]["config"]["properties"]
     assert set(config) == set(FitConfig().to_dict())
 

@@ -5,7 +5,7 @@ import json
 import pytest
 
 from solver.errors import FileFormatError
-from solver.experiment import load_experiment
+from solver.files.experiment import load_experiment
 
 # Written by hand in the version 0 layout (see solver/experiment_migrate.py).
 VERSION_0 = {

@@ -6,8 +6,8 @@ import numpy as np
 import pytest
 
 from solver import FitConfig, fit
-from solver.dataset import Dataset
-from solver.exports import model_card, write_model_card
+from solver.files.dataset import Dataset
+from solver.files.exports import model_card, write_model_card
 
 rng = np.random.default_rng(7)
 X = np.r_[rng.normal([20.0, 300.0], [2.0, 40.0], (30, 2)),

@@ -6,10 +6,10 @@ import numpy as np
 import pytest
 
 from solver import FitConfig, fit
-from solver.dataset import Dataset
+from solver.files.dataset import Dataset
 from solver.errors import InputError
-from solver.experiment import load_experiment, save_experiment
-from solver.exports import neutralise, points_table, write_points_csv
+from solver.files.experiment import load_experiment, save_experiment
+from solver.files.exports import neutralise, points_table, write_points_csv
 
 X = np.array([[-3.5, 0.0], [-1.0, 0.4], [0.2, -0.1], [2.0, 2.5], [3.0, 1.0], [0.1, 0.3]])
 Y = np.array([-1, -1, -1, 1, 1, 1])

@@ -3,7 +3,7 @@
 import numpy as np
 from PySide6.QtGui import QKeySequence
 
-from app.controls import C_to_slider, slider_to_C
+from app.panels.controls import C_to_slider, slider_to_C
 from solver.config import FitConfig
 from solver.result import ON_MARGIN
 

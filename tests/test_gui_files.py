@@ -6,9 +6,9 @@ import numpy as np
 import pytest
 from PySide6.QtCore import QSettings, QTimer
 
-from app.about import about_text
-from app.launch import first_sample
-from solver.experiment import load_experiment
+from app.dialogs.about import about_text
+from app.window.launch import first_sample
+from solver.files.experiment import load_experiment
 
 from test_gui_fixtures import gauge_points, load_points, settle, temporary_settings, window  # noqa: F401
 
@@ -57,7 +57,7 @@ def test_importing_a_csv_through_the_dialog_replaces_the_points(window, qtbot, t
 
 
 def test_the_import_dialog_shows_the_importers_error_in_place(qtbot, tmp_path, temporary_settings):
-    from app.import_dialog import ImportDialog
+    from app.dialogs.import_dialog import ImportDialog
     path = _write_csv(tmp_path / "three.csv", [(1, 2, "a"), (2, 3, "b"), (3, 1, "c")])
     dialog = ImportDialog(str(path))
     qtbot.addWidget(dialog)
@@ -102,7 +102,7 @@ def test_an_edit_writes_a_recovery_file_that_a_new_window_can_recover(window, qt
     window.recovery.write_now()
     assert window.recovery.path.exists()
     assert Path(QSettings().fileName()).parent == window.recovery.path.parent
-    from app.main_window import MainWindow
+    from app.window.main_window import MainWindow
     second = MainWindow(quiet=True)
     qtbot.addWidget(second)
     assert second.recover_from(window.recovery.path)
@@ -121,7 +121,7 @@ def test_saving_removes_the_recovery_file(window, qtbot, tmp_path):
 def test_the_view_settings_come_back_in_the_next_window(window, qtbot):
     window.equal_axes_action.setChecked(False)
     window.save_settings()
-    from app.main_window import MainWindow
+    from app.window.main_window import MainWindow
     second = MainWindow(quiet=True)
     qtbot.addWidget(second)
     assert not second.equal_axes_action.isChecked()

@@ -11,7 +11,7 @@ pytest.importorskip("pytestqt")
 
 from PySide6.QtCore import QCoreApplication, QSettings  # noqa: E402
 
-from solver.dataset import Dataset  # noqa: E402
+from solver.files.dataset import Dataset  # noqa: E402
 
 
 
@@ -28,7 +28,7 @@ def temporary_settings(tmp_path, qapp):
 
 @pytest.fixture
 def window(qtbot, temporary_settings):
-    from app.main_window import MainWindow
+    from app.window.main_window import MainWindow
     win = MainWindow(quiet=True)
     qtbot.addWidget(win)
     win.resize(1280, 800)

@@ -5,22 +5,22 @@ import time
 import numpy as np
 from PySide6.QtCore import QElapsedTimer, QTimer
 
-import app.worker
+import app.document.worker
 from solver.config import FitConfig
-from solver.dataset import Dataset
+from solver.files.dataset import Dataset
 
 from test_gui_fixtures import gauge_points, load_points, settle, temporary_settings, window  # noqa: F401
 
 
 def test_a_slow_solve_does_not_block_the_event_loop(window, qtbot, monkeypatch):
     load_points(window, qtbot, gauge_points())
-    real_fit = app.worker.fit
+    real_fit = app.document.worker.fit
 
     def slow_fit(*args, **kwargs):
         time.sleep(0.6)
         return real_fit(*args, **kwargs)
 
-    monkeypatch.setattr(app.worker, "fit", slow_fit)
+    monkeypatch.setattr(app.document.worker, "fit", slow_fit)
     ticks, gaps, clock = [], [], QElapsedTimer()
     timer = QTimer(interval=10)
     timer.timeout.connect(lambda: (gaps.append(clock.restart()), ticks.append(1)))
@@ -37,8 +37,8 @@ def test_a_slow_solve_does_not_block_the_event_loop(window, qtbot, monkeypatch):
 
 def test_the_busy_indicator_shows_while_a_solve_runs(window, qtbot, monkeypatch):
     load_points(window, qtbot, gauge_points())
-    real_fit = app.worker.fit
-    monkeypatch.setattr(app.worker, "fit", lambda *a, **k: (time.sleep(0.3), real_fit(*a, **k))[1])
+    real_fit = app.document.worker.fit
+    monkeypatch.setattr(app.document.worker, "fit", lambda *a, **k: (time.sleep(0.3), real_fit(*a, **k))[1])
     window.document.set_C(0.5)
     qtbot.waitUntil(lambda: window.busy_indicator.isVisible(), timeout=1000)
     settle(window, qtbot)
@@ -77,8 +77,8 @@ def test_warm_start_hands_the_previous_result_to_the_solver(window, qtbot, monke
     load_points(window, qtbot, gauge_points(overlap=True), FitConfig(kernel="rbf"))
     previous = window.document.result
     seen = []
-    real_fit = app.worker.fit
-    monkeypatch.setattr(app.worker, "fit",
+    real_fit = app.document.worker.fit
+    monkeypatch.setattr(app.document.worker, "fit",
                         lambda X, y, c, warm_start=None: (seen.append(warm_start),
                                                           real_fit(X, y, c, warm_start))[1])
     window.document.set_C(2.0)

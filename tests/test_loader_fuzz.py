@@ -8,9 +8,9 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from solver import FitConfig, fit
-from solver.dataset import Dataset, load_table, preview_table
+from solver.files.dataset import Dataset, load_table, preview_table
 from solver.errors import SlacklineError
-from solver.experiment import experiment_from_dict, experiment_to_dict, load_experiment
+from solver.files.experiment import experiment_from_dict, experiment_to_dict, load_experiment
 
 # SLACKLINE_FUZZ_EXAMPLES=2000 for a longer hunt; the default keeps the suite fast
 FUZZ = settings(max_examples=int(os.environ.get("SLACKLINE_FUZZ_EXAMPLES", 60)), deadline=None,

@@ -6,8 +6,10 @@ import sys
 import pytest
 from PySide6.QtGui import QImage
 
-from app import render
-from app.launch import XCB_FIX, display_problem, first_sample
+from app.canvas import figure
+from cli import render
+from app.display import XCB_FIX, display_problem
+from app.window.launch import first_sample
 from solver.errors import InputError
 from solver.fit import fit
 
@@ -28,7 +30,7 @@ def _args(experiment, output, size="640x480"):
 
 def test_draw_result_returns_an_image_of_the_asked_size(qapp):
     data = gauge_points()
-    image = render.draw_result(data, fit(data.X, data.y), 500, 350)
+    image = figure.draw_result(data, fit(data.X, data.y), 500, 350)
     assert isinstance(image, QImage) and (image.width(), image.height()) == (500, 350)
 
 
@@ -49,7 +51,7 @@ def test_render_writes_an_svg_when_the_name_ends_in_svg(qapp, tmp_path):
 
 def test_a_malformed_size_is_refused_with_an_example():
     with pytest.raises(InputError, match="for example 1200x800"):
-        render.parse_size("big")
+        figure.parse_size("big")
 
 
 def test_an_unknown_picture_type_is_refused(tmp_path):
@@ -75,7 +77,7 @@ def test_an_offscreen_platform_needs_no_display_check():
 
 def test_slackline_without_a_display_says_so_in_one_line_and_exits():
     env = {"PATH": "/usr/bin:/bin", "HOME": "/tmp"}
-    proc = subprocess.run([sys.executable, "-m", "app.cli"], env=env, capture_output=True,
+    proc = subprocess.run([sys.executable, "-m", "cli.main"], env=env, capture_output=True,
                           text=True, timeout=60)
     assert proc.returncode == 2
     assert proc.stderr.count("\n") == 1 and "slackline render" in proc.stderr

@@ -6,14 +6,14 @@ import numpy as np
 import pytest
 
 from solver.config import FitConfig
-from solver.dataset import Dataset
+from solver.files.dataset import Dataset
 from solver.errors import InputError
 from solver.fit import fit
-from solver.sweep import SweepSettings, run_sweep
+from solver.study.sweep import SweepSettings, run_sweep
 
 pypdf = pytest.importorskip("pypdf")
-pytest.importorskip("app.render")
-from app.report import CAUTIONS, export_report  # noqa: E402
+pytest.importorskip("app.canvas.figure")
+from app.canvas.report import CAUTIONS, export_report  # noqa: E402
 
 CHECKSUM = "0123456789abcdef" * 4
 

@@ -2,13 +2,15 @@
 
 from pathlib import Path
 
+from solver.files.bundled import samples
+
 import pytest
 
 from solver import FitConfig, NotSeparableError, fit
-from solver.dataset import load_table
-from solver.experiment import load_experiment
+from solver.files.dataset import load_table
+from solver.files.experiment import load_experiment
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(str(samples()))  # the bundled samples, as the installed program finds them
 TABLES = sorted(SAMPLES.glob("*.csv"))
 
 

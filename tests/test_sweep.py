@@ -11,9 +11,9 @@ import sys
 
 import solver.fit  # noqa: F401  (the module, looked up in sys.modules below)
 from solver.config import FitConfig
-from solver.crossval import make_folds
+from solver.study.crossval import make_folds
 from solver.errors import ConvergenceError, InputError
-from solver.sweep import SweepSettings, run_sweep
+from solver.study.sweep import SweepSettings, run_sweep
 
 FIT_MODULE = sys.modules["solver.fit"]  # the package re-exports fit, shadowing the module
 SMALL = SweepSettings(c_from=1e-2, c_to=1e2, steps=5, folds=3, seed=7)

@@ -5,7 +5,7 @@ import json
 import numpy as np
 import pytest
 
-from app.cli import main
+from cli.main import main
 
 
 @pytest.fixture

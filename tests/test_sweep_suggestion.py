@@ -7,7 +7,7 @@ import pytest
 
 from solver.config import FitConfig
 from solver.result import STATUSES
-from solver.sweep_result import SweepResult
+from solver.study.sweep_result import SweepResult
 
 
 def sweep_with_fold_errors(C, fold_errors):

@@ -1,0 +1,260 @@
+"""The canvas's drawn items, created once and updated in place.
+
+Used by the interactive canvas and by offscreen rendering alike, so a saved
+picture shows exactly what the window shows.  Items are reused: an update
+only hands new arrays to existing items.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import QRectF, Qt
+
+from app.canvas import geometry
+from app.canvas.palette import class_colour, class_symbol, palette
+
+KERNEL_GRID = 120   # contour and shading lattice for kernel fits
+LINEAR_GRID = 64    # linear f is a plane: a coarse shading grid is exact enough
+SHADE_LIMIT = 2.0   # f is shaded from -2 to +2; beyond, the colour saturates
+
+
+SHADE_STRENGTH = 0.45   # how far the shading goes from white towards a class colour
+
+
+def _shade_lookup() -> np.ndarray:
+    """A diverging table: negative class colour -> white -> positive class colour.
+
+    The light tint is baked into the table (instead of an item opacity, which
+    makes Qt compose a layer on every paint and cost ~10 ms per frame)."""
+    colours = palette()
+    neg = np.array(pg.mkColor(colours["shade_negative"]).getRgb()[:3], dtype=float)
+    pos = np.array(pg.mkColor(colours["shade_positive"]).getRgb()[:3], dtype=float)
+    white = np.array([255.0, 255.0, 255.0])
+    t = SHADE_STRENGTH * np.linspace(-1, 1, 256)[:, None]
+    table = np.where(t < 0, white + (neg - white) * -t, white + (pos - white) * t)
+    return np.rint(table).astype(np.ubyte)
+
+
+def _pass_clicks(item):
+    """Let clicks on markers fall through to the view box, which owns editing."""
+    item.mouseClickEvent = lambda ev: ev.ignore()
+
+
+class SceneItems:
+    """Every item of one plot: shading, boundary, band, w, slack, points, rings."""
+
+    def __init__(self, plot: pg.PlotItem, legend: bool = True):
+        colours = palette()
+        self.plot = plot
+        self.result = None
+        self.shade = pg.ImageItem(lut=_shade_lookup(), levels=(-SHADE_LIMIT, SHADE_LIMIT))
+        self.shade.setZValue(-20)
+        plot.addItem(self.shade, ignoreBounds=True)
+
+        def line(colour, width, style=Qt.SolidLine, z=0, name=None, connect="pairs"):
+            pen = pg.mkPen(colour, width=width, style=style)
+            item = pg.PlotDataItem(pen=pen, connect=connect, name=name, antialias=True)
+            item.setZValue(z)
+            plot.addItem(item, ignoreBounds=True)
+            return item
+
+        self.ghost_boundary = line(colours["ghost"], 2, Qt.DashLine, -8, name="pinned fit")
+        self.ghost_band = line(colours["ghost"], 1, Qt.DotLine, -8)
+        self.band = line(colours["band"], 1.4, Qt.DashLine, -4, name="margin  f = \u00b11")
+        self.boundary = line(colours["boundary"], 2.6, Qt.SolidLine, -3, name="boundary  f = 0")
+        self.slack = line(colours["slack"], 1.8, Qt.SolidLine, -2, name="slack \u03be")
+        self.weight = line(colours["weight_vector"], 2.4, Qt.SolidLine, -1, name="w")
+        self.arrow = pg.ArrowItem(pen=pg.mkPen(colours["weight_vector"]), headLen=13,
+                                  tipAngle=32, tailLen=0,
+                                  brush=pg.mkBrush(colours["weight_vector"]))
+        self.arrow.setZValue(-1)
+        plot.addItem(self.arrow, ignoreBounds=True)
+        self.arrow.hide()
+
+        self.points = {}
+        for sign in (1, -1):
+            item = pg.ScatterPlotItem(symbol=class_symbol(sign), size=9,
+                                      pen=pg.mkPen("#ffffff", width=0.8),
+                                      brush=pg.mkBrush(class_colour(sign)), name=None)
+            item.setZValue(5)
+            _pass_clicks(item)  # the view box edits points
+            plot.addItem(item)
+            self.points[sign] = item
+        self.rings = pg.ScatterPlotItem(symbol="o", size=17, brush=None,
+                                        pen=pg.mkPen(colours["support_ring"], width=1.6),
+                                        name="support vector")
+        self.rings.setZValue(4)
+        _pass_clicks(self.rings)
+        plot.addItem(self.rings, ignoreBounds=True)
+        self.selected = pg.ScatterPlotItem(symbol="o", size=23, brush=None,
+                                           pen=pg.mkPen(colours["selection"], width=3.2))
+        self.selected.setZValue(6)
+        _pass_clicks(self.selected)
+        plot.addItem(self.selected, ignoreBounds=True)
+        self.legend = None
+        if legend:
+            self._build_legend(plot)
+
+    def _build_legend(self, plot):
+        self.legend = plot.addLegend(offset=(8, 8), labelTextSize="8pt",
+                                     labelTextColor=palette()["axis"],
+                                     brush=pg.mkBrush(255, 255, 255, 215),
+                                     pen=pg.mkPen("#c8c8c8"))
+        self.legend.setZValue(50)
+        self.legend_class = {}
+        for sign in (1, -1):
+            sample = pg.ScatterPlotItem(symbol=class_symbol(sign), size=9,
+                                        brush=pg.mkBrush(class_colour(sign)),
+                                        pen=pg.mkPen("#ffffff", width=0.8))
+            self.legend_class[sign] = sample
+            self.legend.addItem(sample, "+1" if sign > 0 else "-1")
+        for item in (self.rings, self.boundary, self.band, self.weight, self.slack):
+            self.legend.addItem(item, item.name())
+
+    def set_class_names(self, positive: str, negative: str):
+        if self.legend is None:
+            return
+        for sign, text, code in ((1, positive, "+1"), (-1, negative, "\u22121")):
+            self.legend.getLabel(self.legend_class[sign]).setText(f"{text}  ({code})")
+
+    # -- points ------------------------------------------------------------
+    def set_points(self, X: np.ndarray, y: np.ndarray):
+        for sign, item in self.points.items():
+            chosen = X[y == sign]
+            item.setData(x=chosen[:, 0], y=chosen[:, 1])
+
+    def set_selection(self, X: np.ndarray, indices):
+        chosen = X[sorted(indices)] if len(indices) else np.zeros((0, 2))
+        self.selected.setData(x=chosen[:, 0], y=chosen[:, 1])
+
+    # -- the fit -----------------------------------------------------------
+    def set_result(self, result, X: np.ndarray, y: np.ndarray, rect):
+        """Draw ``result`` over ``rect``; per-point items only while they match X."""
+        self.result = result
+        if result is None:
+            for item in (self.boundary, self.band, self.weight, self.slack):
+                item.setData([], [])
+            self.rings.setData([], [])
+            self.shade.clear()
+            self.arrow.hide()
+            return
+        matches = len(result.y) == len(X) and np.array_equal(result.X, X)
+        self._draw_field(result, rect)
+        if matches:
+            support = result.X[result.support]
+            self.rings.setData(x=support[:, 0], y=support[:, 1])
+            self._draw_slack(result, rect)
+        else:
+            self.rings.setData([], [])
+            self.slack.setData([], [])
+        self._draw_weight(result, X)
+        self._legend_lists_weight(result.w is not None)
+
+    def _legend_lists_weight(self, show: bool):
+        """Kernel fits draw no w, so their legend does not list it."""
+        if self.legend is None:
+            return
+        listed = any(sample.item is self.weight for sample, _ in self.legend.items)
+        if show == listed:
+            return
+        self.legend.removeItem(self.slack)       # keep the order: ..., w, slack
+        if listed:
+            self.legend.removeItem(self.weight)
+        else:
+            self.legend.addItem(self.weight, self.weight.name())
+        self.legend.addItem(self.slack, self.slack.name())
+
+    def set_pinned(self, pinned, rect):
+        if pinned is None:
+            self.ghost_boundary.setData([], [])
+            self.ghost_band.setData([], [])
+            return
+        zero, band = self._level_sets(pinned, rect)
+        self.ghost_boundary.setData(zero[:, 0], zero[:, 1])
+        self.ghost_band.setData(band[:, 0], band[:, 1])
+
+    def refresh_view(self, rect):
+        """Redo what depends on the visible rectangle (after pan or zoom)."""
+        if self.result is not None:
+            self._draw_field(self.result, rect)
+            self._place_arrow()
+
+    def _level_sets(self, result, rect):
+        """(boundary segments, band segments) of ``result`` over ``rect``."""
+        if result.w is not None:
+            ends = [geometry.clip_line(result.w, -result.b + level, rect) for level in (0, 1, -1)]
+            empty = np.zeros((0, 2))
+            zero = ends[0] if ends[0] is not None else empty
+            band = np.concatenate([e for e in ends[1:] if e is not None] or [empty])
+            return zero, band
+        xs, ys, values = self._grid_values(result, rect, KERNEL_GRID)
+        zero = geometry.contour_segments(values, xs, ys, 0.0)
+        band = np.concatenate([geometry.contour_segments(values, xs, ys, level)
+                               for level in (1.0, -1.0)])
+        return zero, band
+
+    def _grid_values(self, result, rect, size):
+        xs, ys, lattice = geometry.grid(rect, size)
+        return xs, ys, result.decision_function(lattice).reshape(len(ys), len(xs))
+
+    def _draw_field(self, result, rect):
+        x0, x1, y0, y1 = rect
+        size = LINEAR_GRID if result.w is not None else KERNEL_GRID
+        xs, ys, values = self._grid_values(result, rect, size)
+        # ImageItem reads image[x, y]; each texel covers one lattice cell
+        self.shade.setImage(values.T, autoLevels=False, levels=(-SHADE_LIMIT, SHADE_LIMIT))
+        dx, dy = (x1 - x0) / (size - 1), (y1 - y0) / (size - 1)
+        self.shade.setRect(QRectF(x0 - dx / 2, y0 - dy / 2, x1 - x0 + dx, y1 - y0 + dy))
+        if result.w is not None:
+            zero, band = self._level_sets(result, rect)
+        else:
+            zero = geometry.contour_segments(values, xs, ys, 0.0)
+            band = np.concatenate([geometry.contour_segments(values, xs, ys, level)
+                                   for level in (1.0, -1.0)])
+        self.boundary.setData(zero[:, 0], zero[:, 1])
+        self.band.setData(band[:, 0], band[:, 1])
+
+    def _draw_slack(self, result, rect):
+        with_slack = np.flatnonzero(result.slack > 1e-9)
+        if not len(with_slack):
+            self.slack.setData([], [])
+            return
+        X, y, slack = result.X[with_slack], result.y[with_slack], result.slack[with_slack]
+        if result.w is not None:
+            targets = geometry.linear_slack_targets(X, y, slack, result.w)
+        else:
+            reach = 0.5 * max(rect[1] - rect[0], rect[3] - rect[2])
+            targets = geometry.gradient_slack_targets(result, X, y, slack, reach)
+        pairs = geometry.slack_segments(X, targets)
+        pairs = pairs[~np.isnan(pairs[:, 0])]
+        self.slack.setData(pairs[:, 0], pairs[:, 1])
+
+    def _draw_weight(self, result, X):
+        if result.w is None or not np.any(result.w):
+            self.weight.setData([], [])
+            self.arrow.hide()
+            self._arrow_tip = None
+            return
+        anchor = X.mean(axis=0) if len(X) else np.zeros(2)
+        foot = geometry.foot_on_boundary(result.w, result.b, anchor)
+        # the arrow runs from f = 0 to f = +1: length 1/|w|, half the margin width
+        tip = foot + result.w / np.dot(result.w, result.w)
+        self.weight.setData([foot[0], tip[0]], [foot[1], tip[1]])
+        self._arrow_tip = (foot, tip)
+        self._place_arrow()
+
+    def _place_arrow(self):
+        ends = getattr(self, "_arrow_tip", None)
+        if ends is None:
+            return
+        foot, tip = ends
+        view = self.plot.getViewBox()
+        a, b = view.mapViewToDevice(pg.Point(*foot)), view.mapViewToDevice(pg.Point(*tip))
+        if a is None or b is None:
+            return
+        # ArrowItem: angle 0 points left (towards -x on screen); screen y grows downward
+        angle = np.degrees(np.arctan2(b.y() - a.y(), b.x() - a.x())) + 180.0
+        self.arrow.setStyle(angle=angle)
+        self.arrow.setPos(tip[0], tip[1])
+        self.arrow.show()

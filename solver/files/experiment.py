@@ -1,0 +1,331 @@
+"""Experiment files: points, fit configuration and figures in one checked JSON document.
+
+The format is described by resources/experiment.schema.json (version 1).
+Every load validates the document against it and lists every problem with
+its JSON path; a SHA-256 over the canonical content (sorted keys, compact
+separators, UTF-8, without the "checksum" key) catches edited or damaged
+files.  Writes are atomic (solver.files.atomic).
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import hashlib
+import json
+import math
+import platform
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from solver.files.atomic import atomic_write_text
+from solver.config import FitConfig
+from solver.files.dataset import Dataset
+from solver.errors import FileFormatError, InputError
+from solver.files.migration import CURRENT_VERSION, migrate
+from solver.files.schema_check import cap, non_finite_paths, schema_problems, short
+
+FORMAT_NAME = "slackline-experiment"
+FORMAT_VERSION = CURRENT_VERSION
+
+
+@dataclass(frozen=True)
+class Experiment:
+    dataset: Dataset
+    config: FitConfig
+    results: dict | None         # the stored figures (see results_to_dict), None if unfitted
+    note: str | None
+    written: dict                # provenance: at, slackline, python, numpy, cvxopt, platform
+    format_version: int = FORMAT_VERSION   # as found in the file, before migration
+    checksum: str | None = None
+
+
+# -- writing -------------------------------------------------------------------
+def results_to_dict(result) -> dict:
+    """The figures of a FitResult as stored in an experiment file."""
+    model = result.model
+    return {
+        "w": None if result.w is None else [float(v) for v in result.w],
+        "b": float(result.b),
+        "weight_norm": float(result.weight_norm),
+        "margin_width": _finite(result.margin_width),
+        "objective": {"primal": float(result.primal_objective),
+                      "dual": float(result.dual_objective),
+                      "gap": _finite(result.duality_gap),
+                      "regularisation": _finite(result.half_norm_w2),
+                      "penalty": _finite(result.penalty_term)},
+        "support": [int(i) for i in result.support],
+        "alpha": result.alpha.astype(float).tolist(),
+        "slack": result.slack.astype(float).tolist(),
+        "decision": result.decision.astype(float).tolist(),
+        "status": [str(s) for s in result.status],
+        "counts": {str(k): int(v) for k, v in
+                   {s: result.count(s) for s in ("outside", "on_margin", "inside",
+                                                 "misclassified")}.items()},
+        "training_error": _finite(result.training_error),
+        "kkt_residuals": {k: _finite(v) for k, v in result.kkt.to_dict().items()},
+        "solver": {"iterations": int(result.iterations), "rounds": int(result.rounds),
+                   "seconds": float(result.seconds), "converged": bool(result.converged),
+                   "status": str(result.solver_status)},
+        "model": {
+            "kernel": model.kernel, "gamma": float(model.gamma), "degree": int(model.degree),
+            "coef0": float(model.coef0), "shift": _floats(model.shift),
+            "scale": _floats(model.scale), "b": float(model.b),
+            "feature_weights": _floats(model.feature_weights),
+            "support_vectors": (None if model.support_vectors is None
+                                else np.asarray(model.support_vectors, float).tolist()),
+            "coefficients": _floats(model.coefficients),
+        },
+    }
+
+
+def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=None) -> dict:
+    """The complete document (checksum included) for ``dataset`` fitted with ``config``."""
+    if not isinstance(dataset, Dataset):
+        raise InputError(f"dataset must be a Dataset; got {type(dataset).__name__}")
+    if not isinstance(config, FitConfig):
+        raise InputError(f"config must be a FitConfig; got {type(config).__name__}")
+    if note is not None and not isinstance(note, str):
+        raise InputError(f"the note must be text or None; got {type(note).__name__}")
+    if result is not None:
+        if result.config != config:
+            raise InputError("the result was fitted with a different configuration than the "
+                             "one given; save the result's own configuration or refit first")
+        if len(result.y) != len(dataset) or not np.array_equal(result.X, dataset.X):
+            raise InputError(f"the result belongs to other points ({len(result.y)} points) "
+                             f"than the data set ({len(dataset)} points); refit first")
+    rows = tuple(dataset.rows)
+    points = []
+    for i in range(len(dataset)):
+        point = {"x": [float(dataset.X[i, 0]), float(dataset.X[i, 1])],
+                 "label": _label(dataset.labels[i])}
+        if len(rows) == len(dataset):
+            point["line"] = int(rows[i])
+        points.append(point)
+    source = None
+    if dataset.source is not None and dataset.sha256 is not None:
+        source = {"file": str(dataset.source), "sha256": str(dataset.sha256),
+                  "skipped_lines": [int(n) for n in dataset.skipped]}
+    document = {
+        "format": FORMAT_NAME,
+        "version": FORMAT_VERSION,
+        "written": provenance(),
+        "note": note,
+        "data": {
+            "features": [{"name": str(n), "unit": str(u)}
+                         for n, u in zip(dataset.feature_names, dataset.units)],
+            "label_name": str(dataset.label_name),
+            "label_mapping": [{"label": _label(label), "sign": int(sign)} for label, sign in
+                              sorted(dataset.label_mapping.items(), key=lambda kv: -kv[1])],
+            "source": source,
+        },
+        "points": points,
+        "config": config.to_dict(),
+        "results": None if result is None else results_to_dict(result),
+    }
+    document["checksum"] = {"algorithm": "sha256", "value": content_checksum(document)}
+    return document
+
+
+def save_experiment(path, dataset: Dataset, result, note=None, config=None) -> Path:
+    """Write ``dataset`` with ``result`` (or, unfitted, with ``config``) to ``path`` atomically."""
+    if config is None:
+        config = result.config if result is not None else FitConfig()
+    document = experiment_to_dict(dataset, config, result, note=note)
+    atomic_write_text(path, render(document))
+    return Path(path)
+
+
+def render(document: dict) -> str:
+    """Readable JSON: sections indented, each point and each number list on one line."""
+    return _pretty(document, 0) + "\n"
+
+
+def canonical_bytes(document: dict) -> bytes:
+    content = {k: v for k, v in document.items() if k != "checksum"}
+    return json.dumps(content, sort_keys=True, separators=(",", ":"), ensure_ascii=False,
+                      allow_nan=False).encode("utf-8")
+
+
+def content_checksum(document: dict) -> str:
+    return hashlib.sha256(canonical_bytes(document)).hexdigest()
+
+
+# -- reading -------------------------------------------------------------------
+def load_experiment(path) -> Experiment:
+    """Read, migrate, validate and check an experiment file; FileFormatError otherwise."""
+    path = Path(path)
+    try:
+        raw = path.read_bytes()
+    except OSError as exc:
+        raise FileFormatError(f"cannot read {path}: {exc.strerror or exc}") from None
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise FileFormatError(f"{path.name} is not an experiment file: byte {exc.start} is "
+                              "not UTF-8 text") from None
+    if not text.strip():
+        raise FileFormatError(f"{path.name} is empty; an experiment file holds one JSON object")
+    try:
+        data = json.loads(text, parse_constant=_reject_constant)
+    except json.JSONDecodeError as exc:
+        hint = " (the file looks cut short)" if exc.pos >= len(text.rstrip()) else ""
+        raise FileFormatError(f"{path.name} is not valid JSON: {exc.msg} at line {exc.lineno}, "
+                              f"column {exc.colno}{hint}") from None
+    except (ValueError, RecursionError) as exc:
+        raise FileFormatError(f"{path.name} is not valid JSON: {exc}") from None
+    return experiment_from_dict(data, name=path.name)
+
+
+def experiment_from_dict(data, name: str = "the experiment") -> Experiment:
+    """Validate a parsed document (any supported version) and build the Experiment."""
+    if not isinstance(data, dict):
+        raise FileFormatError(f"{name} is not an experiment: expected a JSON object at the top "
+                              f"level; got {short(data)}")
+    if "format" in data and data["format"] != FORMAT_NAME:
+        raise FileFormatError(f"{name} is not a Slackline experiment: its format is "
+                              f"{short(data.get('format'))}, expected {FORMAT_NAME!r}")
+    found_version = data.get("version")
+    migrated = migrate(data, name)
+    if migrated is not data:
+        try:
+            migrated["checksum"] = {"algorithm": "sha256", "value": content_checksum(migrated)}
+        except ValueError:
+            pass  # a non-finite number, reported with its path below
+    try:
+        problems = schema_problems(migrated) or cap(non_finite_paths(migrated))
+    except RecursionError:
+        raise FileFormatError(f"{name} is nested too deeply to be an experiment") from None
+    if not problems:
+        problems = _consistency_problems(migrated)
+    if not problems:
+        problems = _checksum_problems(migrated)
+    if problems:
+        raise FileFormatError(f"{name} is not a valid experiment file ({_count(problems)}); "
+                              f"fix the file or save the experiment again", problems=problems)
+    return _build(migrated, found_version)
+
+
+def _build(document: dict, found_version) -> Experiment:
+    data, points = document["data"], document["points"]
+    mapping = {_key(m["label"]): m["sign"] for m in data["label_mapping"]}
+    labels = tuple(_key(p["label"]) for p in points)
+    lines = tuple(p["line"] for p in points) if all("line" in p for p in points) else ()
+    source = data["source"] or {}
+    dataset = Dataset(
+        X=np.array([p["x"] for p in points], dtype=float).reshape(-1, 2),
+        y=np.array([mapping[label] for label in labels], dtype=int),
+        labels=labels,
+        feature_names=tuple(f["name"] for f in data["features"]),
+        label_name=data["label_name"], label_mapping=mapping,
+        source=source.get("file"), sha256=source.get("sha256"), rows=lines,
+        skipped=tuple(source.get("skipped_lines", ())),
+        units=tuple(f["unit"] for f in data["features"]))
+    return Experiment(dataset=dataset, config=FitConfig.from_dict(document["config"]),
+                      results=document["results"], note=document.get("note"),
+                      written=dict(document["written"]),
+                      format_version=found_version if isinstance(found_version, int)
+                      else FORMAT_VERSION,
+                      checksum=document["checksum"]["value"])
+
+
+def _consistency_problems(document: dict) -> list[str]:
+    """What the schema cannot say: labels that match the mapping, arrays one per point."""
+    problems = []
+    mapping = document["data"]["label_mapping"]
+    known = [m["label"] for m in mapping]
+    if sorted(m["sign"] for m in mapping) != [-1, 1]:
+        problems.append("/data/label_mapping: expected one label with sign 1 and one with "
+                        f"sign -1; got signs {[m['sign'] for m in mapping]}")
+    if _key(known[0]) == _key(known[1]):
+        problems.append(f"/data/label_mapping: both entries name the label {short(known[0])}")
+    keys = {_key(k) for k in known}
+    for i, point in enumerate(document["points"]):
+        if _key(point["label"]) not in keys:
+            problems.append(f"/points/{i}/label: expected one of "
+                            f"{', '.join(short(k) for k in known)} (the labels in "
+                            f"/data/label_mapping); got {short(point['label'])}")
+    try:
+        FitConfig.from_dict(document["config"])
+    except (InputError, TypeError) as exc:
+        problems.append(f"/config: {exc}")
+    results, n = document["results"], len(document["points"])
+    if results is not None:
+        for key in ("alpha", "slack", "decision", "status"):
+            if len(results[key]) != n:
+                problems.append(f"/results/{key}: expected {n} entries, one per point; "
+                                f"got {len(results[key])}")
+        for j, index in enumerate(results["support"]):
+            if index >= n:
+                problems.append(f"/results/support/{j}: point index {index} is out of range "
+                                f"(there are {n} points, numbered from 0)")
+    return cap(problems)
+
+
+def _checksum_problems(document: dict) -> list[str]:
+    stored = document["checksum"]["value"]
+    computed = content_checksum(document)
+    if stored == computed:
+        return []
+    return [f"/checksum/value: the content does not match its checksum, so the file was "
+            f"edited or damaged after it was written (stored {stored[:12]}..., content gives "
+            f"{computed[:12]}...)"]
+
+
+# -- helpers -------------------------------------------------------------------
+def provenance() -> dict:
+    import cvxopt
+
+    from solver import __version__
+    return {"at": _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds"),
+            "slackline": __version__, "python": platform.python_version(),
+            "numpy": np.__version__, "cvxopt": getattr(cvxopt, "__version__", "unknown"),
+            "platform": f"{platform.system()} {platform.machine()}".strip() or sys.platform}
+
+
+def _label(value):
+    """A label as a JSON scalar (numpy scalars become Python values)."""
+    if isinstance(value, np.generic):
+        value = value.item()
+    if isinstance(value, (str, bool, int)) or (isinstance(value, float) and math.isfinite(value)):
+        return value
+    raise InputError(f"labels must be text, numbers or true/false to be saved; got {value!r}")
+
+
+def _key(label):
+    """Labels compare by value: 1 and 1.0 are the same label (as in the source table)."""
+    if isinstance(label, float) and label.is_integer():
+        return int(label)
+    return label
+
+
+def _finite(value):
+    value = float(value)
+    return value if math.isfinite(value) else None
+
+
+def _floats(array):
+    return None if array is None else [float(v) for v in np.asarray(array, dtype=float).ravel()]
+
+
+def _count(problems: list[str]) -> str:
+    return "1 problem" if len(problems) == 1 else f"{len(problems)} problems"
+
+
+def _reject_constant(name: str):
+    raise ValueError(f"{name} is not a JSON number; write null or a finite number")
+
+
+_LINE = json.JSONEncoder(ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+
+
+def _pretty(value, depth: int) -> str:
+    pad, inner = "  " * depth, "  " * (depth + 1)
+    if isinstance(value, dict) and value and (depth < 2 or len(_LINE.encode(value)) > 100):
+        items = [f"{inner}{_LINE.encode(k)}: {_pretty(v, depth + 1)}" for k, v in value.items()]
+        return "{\n" + ",\n".join(items) + "\n" + pad + "}"
+    if isinstance(value, list) and len(value) > 3 and isinstance(value[0], (dict, list)):
+        return "[\n" + ",\n".join(inner + _LINE.encode(v) for v in value) + "\n" + pad + "]"
+    return _LINE.encode(value)

@@ -27,16 +27,16 @@ def add_config_arguments(parser: argparse.ArgumentParser) -> None:
                         help="regularisation strength, a positive number (default 1)")
     margin.add_argument("--hard", action="store_true",
                         help="hard margin (C = infinity): no slack allowed")
-    parser.add_argument("--kernel", choices=("linear", "poly", "rbf"), default="linear")
+    parser.add_argument("--kernel", choices=("linear", "polynomial", "rbf"), default="linear")
     parser.add_argument("--gamma", type=_number("gamma"), default=0.5,
                         help="kernel width for rbf and poly (default 0.5)")
     parser.add_argument("--degree", type=_number("degree"), default=3,
                         help="polynomial degree (default 3)")
-    parser.add_argument("--coef0", type=_number("coef0"), default=1.0,
+    parser.add_argument("--offset", type=_number("offset"), default=1.0,
                         help="polynomial offset, >= 0 (default 1)")
     parser.add_argument("--weight", action="append", default=[], metavar="LABEL=FACTOR",
                         help="class weight: multiply C for points of LABEL (repeatable)")
-    parser.add_argument("--scale", choices=("none", "standard", "minmax"), default="none",
+    parser.add_argument("--scale", choices=("none", "zscore", "range"), default="none",
                         help="feature scaling before the fit (default none)")
 
 
@@ -83,7 +83,7 @@ def config_from_args(args, dataset: Dataset) -> FitConfig:
             raise InputError(f"the class weight in --weight {item!r} must be a number") from None
     degree = int(args.degree) if float(args.degree).is_integer() else args.degree
     return FitConfig(C=args.C, hard_margin=args.hard, kernel=args.kernel, gamma=args.gamma,
-                     degree=degree, coef0=args.coef0, weight_positive=weights[1],
+                     degree=degree, offset=args.offset, weight_positive=weights[1],
                      weight_negative=weights[-1], scaling=args.scale)
 
 

@@ -64,11 +64,11 @@ SAMPLES = [
     ("1-pilot-batch-gauges", pilot_batch_gauges, "pass", FitConfig(C=10.0),
      "Pilot batch of 44 machined bushings: bore deviation from nominal and surface "
      "roughness at final inspection; the two classes separate cleanly."),
-    ("2-proofing-trials", proofing_trials, "rose", FitConfig(C=1.0, scaling="standard"),
+    ("2-proofing-trials", proofing_trials, "rose", FitConfig(C=1.0, scaling="zscore"),
      "120 dough trials in a test bakery: dough temperature and proofing time against "
      "whether the loaf rose or collapsed; the classes overlap, so C matters."),
     ("3-hollow-cone-spray", hollow_cone_spray, "in pattern",
-     FitConfig(C=10.0, kernel="rbf", gamma=1.0, scaling="standard"),
+     FitConfig(C=10.0, kernel="rbf", gamma=1.0, scaling="zscore"),
      "Droplet landing spots of a hollow-cone spray nozzle on a test plate: good droplets "
      "form a ring around the axis, so a linear boundary cannot separate them."),
 ]

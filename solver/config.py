@@ -10,8 +10,8 @@ from dataclasses import asdict, dataclass, field, replace
 
 from solver.errors import InputError
 
-KERNELS = ("linear", "poly", "rbf")
-SCALINGS = ("none", "standard", "minmax")
+KERNELS = ("linear", "polynomial", "rbf")
+SCALINGS = ("none", "zscore", "range")
 
 
 @dataclass(frozen=True)
@@ -33,12 +33,12 @@ class FitConfig:
 
     C            regularisation strength, a positive float; ignored when
                  ``hard_margin`` is set (C = infinity: no slack allowed).
-    kernel       "linear", "poly" (gamma * x.z + coef0) ** degree, or
+    kernel       "linear", "polynomial" (gamma * x.z + offset) ** degree, or
                  "rbf" exp(-gamma |x - z|^2).
     weight_positive / weight_negative
                  class weights: the penalty of point i is C times the weight
                  of its class.
-    scaling      "none", "standard" (zero mean, unit variance) or "minmax"
+    scaling      "none", "zscore" (zero mean, unit variance) or "range"
                  (each feature onto [0, 1]); w and b are always reported in
                  the original units.
     """
@@ -48,7 +48,7 @@ class FitConfig:
     kernel: str = "linear"
     gamma: float = 0.5
     degree: int = 3
-    coef0: float = 1.0
+    offset: float = 1.0
     weight_positive: float = 1.0
     weight_negative: float = 1.0
     scaling: str = "none"
@@ -60,7 +60,7 @@ class FitConfig:
     @property
     def uses_feature_map(self) -> bool:
         """Linear and polynomial fits run in the primal on explicit features."""
-        return self.kernel in ("linear", "poly")
+        return self.kernel in ("linear", "polynomial")
 
     def penalty(self, sign: int) -> float:
         """C_i for a point of class ``sign`` (+1 or -1); inf for hard margin."""
@@ -100,19 +100,19 @@ def _check_config(config: FitConfig) -> None:
         raise InputError(f"C must be a positive number or 'hard'; got {config.C!r}")
     if config.kernel not in KERNELS:
         raise InputError(f"kernel must be one of {', '.join(KERNELS)}; got {config.kernel!r}")
-    if config.kernel in ("poly", "rbf") and not _is_positive_number(config.gamma):
+    if config.kernel in ("polynomial", "rbf") and not _is_positive_number(config.gamma):
         raise InputError(f"gamma must be a positive number; got {config.gamma!r}")
-    if config.kernel == "poly":
+    if config.kernel == "polynomial":
         degree = config.degree
         if isinstance(degree, float) and degree.is_integer():
             object.__setattr__(config, "degree", int(degree))
             degree = config.degree
         if not isinstance(degree, int) or isinstance(degree, bool) or not 1 <= degree <= 10:
             raise InputError(f"degree must be a whole number from 1 to 10; got {degree!r}")
-        if not (isinstance(config.coef0, (int, float)) and math.isfinite(config.coef0)
-                and config.coef0 >= 0):
-            raise InputError(f"coef0 must be a number >= 0 (so the polynomial kernel is an "
-                             f"inner product of real features); got {config.coef0!r}")
+        if not (isinstance(config.offset, (int, float)) and math.isfinite(config.offset)
+                and config.offset >= 0):
+            raise InputError(f"offset must be a number >= 0 (so the polynomial kernel is an "
+                             f"inner product of real features); got {config.offset!r}")
     for name in ("weight_positive", "weight_negative"):
         value = getattr(config, name)
         if not _is_positive_number(value):

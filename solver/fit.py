@@ -70,11 +70,11 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
     penalties = np.array([config.penalty(sign) for sign in (1, -1)])[(y < 0).astype(int)]
 
     if config.uses_feature_map:
-        phi = kernels.feature_map(Xs, config.kernel, config.gamma, config.degree, config.coef0)
+        phi = kernels.feature_map(Xs, config.kernel, config.gamma, config.degree, config.offset)
         guess = None if warm_start is None else y * warm_start.decision_function(X)
         sol = solve_primal(phi, y, None if config.hard_margin else penalties, config.options,
                            guess_margin=guess)
-        model = DecisionModel(config.kernel, config.gamma, config.degree, config.coef0,
+        model = DecisionModel(config.kernel, config.gamma, config.degree, config.offset,
                               shift, scale, sol.b, feature_weights=sol.w)
         decision = phi @ sol.w + sol.b
         alpha = np.clip(sol.alpha, 0.0, penalties)
@@ -89,7 +89,7 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
         alpha = sol.alpha
         support = np.flatnonzero(alpha > 0)
         coefficients = alpha[support] * y[support]
-        model = DecisionModel(config.kernel, config.gamma, config.degree, config.coef0,
+        model = DecisionModel(config.kernel, config.gamma, config.degree, config.offset,
                               shift, scale, sol.b, support_vectors=Xs[support],
                               coefficients=coefficients)
         decision = sol.decision

@@ -23,7 +23,7 @@ class DecisionModel:
     kernel: str
     gamma: float
     degree: int
-    coef0: float
+    offset: float
     shift: np.ndarray          # scaling: x_scaled = (x - shift) / scale
     scale: np.ndarray
     b: float
@@ -36,7 +36,7 @@ class DecisionModel:
         P = np.atleast_2d(np.asarray(points, dtype=float))
         scaled = scaling.apply(P, self.shift, self.scale)
         if self.feature_weights is not None:
-            phi = kernels.feature_map(scaled, self.kernel, self.gamma, self.degree, self.coef0)
+            phi = kernels.feature_map(scaled, self.kernel, self.gamma, self.degree, self.offset)
             return phi @ self.feature_weights + self.b
         out = np.empty(len(scaled))
         for start in range(0, len(scaled), _CHUNK):
@@ -57,11 +57,11 @@ class DecisionModel:
                                                      self.shift, self.scale)
             data["w_original_units"] = w.tolist()
             data["b_original_units"] = b
-        if self.kernel in ("poly", "rbf"):
+        if self.kernel in ("polynomial", "rbf"):
             data["gamma"] = self.gamma
-        if self.kernel == "poly":
+        if self.kernel == "polynomial":
             data["degree"] = self.degree
-            data["coef0"] = self.coef0
+            data["offset"] = self.offset
         if self.feature_weights is not None:
             data["feature_weights"] = self.feature_weights.tolist()
         else:

@@ -9,9 +9,9 @@ def scaling_parameters(X: np.ndarray, method: str) -> tuple[np.ndarray, np.ndarr
     """(shift, scale) per feature for ``method``; a constant feature keeps scale 1."""
     if method == "none":
         return np.zeros(X.shape[1]), np.ones(X.shape[1])
-    if method == "standard":
+    if method == "zscore":
         shift, scale = X.mean(axis=0), X.std(axis=0)
-    else:  # "minmax"
+    else:  # "range"
         shift, scale = X.min(axis=0), X.max(axis=0) - X.min(axis=0)
     scale = np.where(scale > 0, scale, 1.0)
     return shift, scale

@@ -94,7 +94,7 @@ def test_export_of_an_unfitted_experiment_fits_it_first(copy, tmp_path, capsys):
 def test_fit_save_writes_an_experiment_that_check_passes(tmp_path, capsys):
     target = tmp_path / "trials.experiment.json"
     assert main(["fit", str(SAMPLES / "2-proofing-trials.csv"), "--positive", "rose",
-                 "--C", "0.5", "--scale", "standard", "--save", str(target)]) == 0
+                 "--C", "0.5", "--scale", "zscore", "--save", str(target)]) == 0
     assert main(["check", str(target)]) == 0
 
 

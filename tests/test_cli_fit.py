@@ -79,7 +79,7 @@ def test_zero_one_labels_map_one_to_plus_one(tmp_path, capsys):
     (["--C", "0"], "C must be a positive number"),
     (["--C", "-1"], "C must be a positive number"),
     (["--kernel", "rbf", "--gamma", "0"], "gamma must be a positive number"),
-    (["--kernel", "poly", "--degree", "2.5"], "degree must be a whole number"),
+    (["--kernel", "polynomial", "--degree", "2.5"], "degree must be a whole number"),
     (["--weight", "maybe=2"], "not in the data"),
     (["--features", "gauge_a"], "two column names"),
 ])

@@ -23,7 +23,7 @@ def gauges() -> Dataset:
 
 @pytest.fixture
 def saved(tmp_path):
-    result = fit(X, Y, FitConfig(C=2.0, scaling="standard"))
+    result = fit(X, Y, FitConfig(C=2.0, scaling="zscore"))
     path = save_experiment(tmp_path / "e.json", gauges(), result, note="first pilot batch")
     return path, result
 
@@ -135,7 +135,7 @@ def test_every_schema_problem_is_listed_with_its_json_path():
     with pytest.raises(FileFormatError, match="4 problems") as caught:
         experiment_from_dict(document)
     assert caught.value.problems == [
-        "/config/kernel: expected one of \"linear\", \"poly\", \"rbf\"; got \"sigmoid\"",
+        "/config/kernel: expected one of \"linear\", \"polynomial\", \"rbf\"; got \"sigmoid\"",
         "/data: missing the required key 'label_name'",
         "/points/1/x: expected at least 2 entries; got 1",
         "/points/4/label: expected a string or a number or true/false; got null",

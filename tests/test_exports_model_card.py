@@ -22,7 +22,7 @@ def apply_card(card, points):
     if card["kernel"] == "linear":
         return x @ np.array(card["w"]) + card["b"]
     u = (x - np.array(card["scaling"]["shift"])) / np.array(card["scaling"]["scale"])
-    if card["kernel"] == "poly":
+    if card["kernel"] == "polynomial":
         terms = [c * u[:, 0] ** i * u[:, 1] ** j
                  for (i, j), c in zip(card["powers"], card["coefficients"])]
         return card["b"] + np.sum(terms, axis=0)
@@ -38,10 +38,10 @@ def data():
 
 @pytest.mark.parametrize("config", [
     FitConfig(C=1.0),
-    FitConfig(C=1.0, scaling="standard"),
-    FitConfig(C=1.0, kernel="poly", degree=3, gamma=0.5, coef0=1.0, scaling="standard"),
-    FitConfig(C=1.0, kernel="poly", degree=2, gamma=1.0, coef0=0.0, scaling="minmax"),
-    FitConfig(C=5.0, kernel="rbf", gamma=0.8, scaling="standard"),
+    FitConfig(C=1.0, scaling="zscore"),
+    FitConfig(C=1.0, kernel="polynomial", degree=3, gamma=0.5, offset=1.0, scaling="zscore"),
+    FitConfig(C=1.0, kernel="polynomial", degree=2, gamma=1.0, offset=0.0, scaling="range"),
+    FitConfig(C=5.0, kernel="rbf", gamma=0.8, scaling="zscore"),
 ], ids=["linear", "linear-scaled", "poly3", "poly2-homogeneous", "rbf"])
 def test_the_card_applied_with_numpy_matches_the_decision_function(tmp_path, config):
     result = fit(X, Y, config)

@@ -44,7 +44,7 @@ def test_a_typed_C_is_applied_exactly(window, qtbot):
 def test_gamma_shows_only_for_kernels_that_use_it(window, qtbot):
     form, controls = window.controls.form, window.controls
     assert not form.isRowVisible(controls.gamma)
-    window.document.set_config(FitConfig(kernel="poly"))
+    window.document.set_config(FitConfig(kernel="polynomial"))
     assert form.isRowVisible(controls.gamma) and form.isRowVisible(controls.degree)
     window.document.set_config(FitConfig(kernel="rbf"))
     assert form.isRowVisible(controls.gamma) and not form.isRowVisible(controls.degree)

@@ -58,13 +58,13 @@ def test_the_gauge_sample_is_linearly_separable():
 def test_the_proofing_sample_overlaps():
     data = experiment_of(SAMPLES / "2-proofing-trials.csv").dataset
     with pytest.raises(NotSeparableError):
-        fit(data.X, data.y, FitConfig(hard_margin=True, scaling="standard"))
+        fit(data.X, data.y, FitConfig(hard_margin=True, scaling="zscore"))
 
 
 def test_the_spray_sample_needs_a_kernel():
     data = experiment_of(SAMPLES / "3-hollow-cone-spray.csv").dataset
-    linear = fit(data.X, data.y, FitConfig(C=10.0, scaling="standard"))
-    rbf = fit(data.X, data.y, FitConfig(C=10.0, kernel="rbf", gamma=1.0, scaling="standard"))
+    linear = fit(data.X, data.y, FitConfig(C=10.0, scaling="zscore"))
+    rbf = fit(data.X, data.y, FitConfig(C=10.0, kernel="rbf", gamma=1.0, scaling="zscore"))
     # demo-suitability thresholds, common practice, no source
     assert linear.training_error > 0.3
     assert rbf.training_error < 0.05

@@ -51,11 +51,11 @@ def test_gamma_must_be_positive(gamma):
 @pytest.mark.parametrize("degree", [0, 2.5, -1, "three"])
 def test_degree_must_be_a_positive_whole_number(degree):
     with pytest.raises(InputError, match="degree must be a whole number"):
-        FitConfig(kernel="poly", degree=degree)
+        FitConfig(kernel="polynomial", degree=degree)
 
 
 def test_unknown_kernel_lists_the_known_ones():
-    with pytest.raises(InputError, match="linear, poly, rbf"):
+    with pytest.raises(InputError, match="linear, polynomial, rbf"):
         FitConfig(kernel="sigmoid")
 
 

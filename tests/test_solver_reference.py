@@ -57,8 +57,14 @@ def _reference(X, y, C, params, weights=None):
     return svc, alpha, dual
 
 
+# the reference library's option names -> ours (its "poly" and "coef0" are its own tokens)
+OUR_NAMES = {"kernel": {"poly": "polynomial"}, "coef0": "offset"}
+
+
 def _config(C, params, **extra):
-    return FitConfig(C=C, **params, **extra)
+    ours = {("offset" if key == "coef0" else key): value for key, value in params.items()}
+    ours["kernel"] = OUR_NAMES["kernel"].get(ours["kernel"], ours["kernel"])
+    return FitConfig(C=C, **ours, **extra)
 
 
 @pytest.mark.parametrize("data_name", sorted(DATASETS))

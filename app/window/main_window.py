@@ -223,7 +223,7 @@ class MainWindow(QMainWindow):
         self.equal_axes_action.setChecked(equal)
         self.canvas.set_equal_axes(equal)
         kernel = settings.value("fit/last_kernel")
-        if kernel in ("linear", "poly", "rbf") and not self.document.X.size:
+        if kernel in ("linear", "polynomial", "rbf") and not self.document.X.size:
             self.document.set_config(self.document.config.with_changes(kernel=kernel))
             self.document.undo_stack.clear()
 

@@ -1,6 +1,7 @@
 """Experiment files: points, fit configuration and figures in one checked JSON document.
 
-The format is described by resources/experiment.schema.json (version 1).
+The format is described by resources/experiment.schema.json (version 2; older
+versions are migrated by solver.files.migration).
 Every load validates the document against it and lists every problem with
 its JSON path; a SHA-256 over the canonical content (sorted keys, compact
 separators, UTF-8, without the "checksum" key) catches edited or damaged
@@ -71,7 +72,7 @@ def results_to_dict(result) -> dict:
                    "status": str(result.solver_status)},
         "model": {
             "kernel": model.kernel, "gamma": float(model.gamma), "degree": int(model.degree),
-            "coef0": float(model.coef0), "shift": _floats(model.shift),
+            "offset": float(model.offset), "shift": _floats(model.shift),
             "scale": _floats(model.scale), "b": float(model.b),
             "feature_weights": _floats(model.feature_weights),
             "support_vectors": (None if model.support_vectors is None
@@ -188,6 +189,11 @@ def experiment_from_dict(data, name: str = "the experiment") -> Experiment:
         raise FileFormatError(f"{name} is not a Slackline experiment: its format is "
                               f"{short(data.get('format'))}, expected {FORMAT_NAME!r}")
     found_version = data.get("version")
+    sealed_problems = _sealed_checksum_problems(data)
+    if sealed_problems:
+        raise FileFormatError(f"{name} is not a valid experiment file (1 problem); "
+                              f"fix the file or save the experiment again",
+                              problems=sealed_problems)
     migrated = migrate(data, name)
     if migrated is not data:
         try:
@@ -262,6 +268,20 @@ def _consistency_problems(document: dict) -> list[str]:
                 problems.append(f"/results/support/{j}: point index {index} is out of range "
                                 f"(there are {n} points, numbered from 0)")
     return cap(problems)
+
+
+def _sealed_checksum_problems(document: dict) -> list[str]:
+    """An older sealed file (version 1 on) must match its own checksum before it is
+    migrated: the migrated copy is sealed anew, which would hide an edit."""
+    version, seal = document.get("version"), document.get("checksum")
+    if (not isinstance(version, int) or isinstance(version, bool) or not
+            1 <= version < FORMAT_VERSION or not isinstance(seal, dict)
+            or not isinstance(seal.get("value"), str)):
+        return []
+    try:
+        return _checksum_problems(document)
+    except (TypeError, ValueError):
+        return []  # unserialisable content: the schema check names it after migration
 
 
 def _checksum_problems(document: dict) -> list[str]:

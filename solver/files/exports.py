@@ -98,9 +98,9 @@ def model_card(dataset: Dataset, result) -> dict:
     }
     if model["kernel"] == "linear":
         card.update(w=figures["w"], b=figures["b"])
-    elif model["kernel"] == "poly":
+    elif model["kernel"] == "polynomial":
         powers, coefficients = _monomials(model)
-        card.update(gamma=model["gamma"], degree=model["degree"], coef0=model["coef0"],
+        card.update(gamma=model["gamma"], degree=model["degree"], offset=model["offset"],
                     powers=powers, coefficients=coefficients, b=model["b"])
     else:
         card.update(gamma=model["gamma"], support_vectors=model["support_vectors"],
@@ -120,13 +120,13 @@ def _monomials(model: dict) -> tuple[list[list[int]], list[float]]:
     (sqrt(gamma) u2)^j over i + j + k = p (solver.kernels), so the weight w_ijk
     contributes w_ijk sqrt(p!/(i! j! k!) c^k) gamma^((i+j)/2) to u1^i u2^j.
     """
-    p, c, gamma = model["degree"], model["coef0"], model["gamma"]
+    p, c, gamma = model["degree"], model["offset"], model["gamma"]
     weights = iter(model["feature_weights"])
     powers, coefficients = [], []
     for i, j, k in poly_exponents(p):
         multinomial = sqrt(factorial(p) / (factorial(i) * factorial(j) * factorial(k)) * c ** k)
         if multinomial == 0.0:
-            continue  # solver.kernels drops these columns (coef0 = 0)
+            continue  # solver.kernels drops these columns (offset = 0)
         powers.append([i, j])
         coefficients.append(float(next(weights) * multinomial * gamma ** ((i + j) / 2)))
     return powers, coefficients

@@ -10,7 +10,11 @@ Version 0 (early files, no checksum, no stored results):
      "config": {"C": 1.0 or "hard", "kernel": ..., "gamma": ..., ...},
      "note": "..."}
 
-Version 1 is described by resources/experiment.schema.json.
+Version 1 (the first sealed format) named the polynomial kernel "poly", its
+offset "coef0" and the scalings "standard" and "minmax".
+
+Version 2 is described by resources/experiment.schema.json: the kernel
+"polynomial", its offset "offset", the scalings "zscore" and "range".
 """
 
 from __future__ import annotations
@@ -18,7 +22,7 @@ from __future__ import annotations
 from solver.config import FitConfig
 from solver.errors import FileFormatError, InputError
 
-CURRENT_VERSION = 1
+CURRENT_VERSION = 2
 
 
 def migrate(document: dict, name: str) -> dict:
@@ -55,7 +59,7 @@ def v0_to_v1(old: dict) -> dict:
     features = [{"name": str(n), "unit": ""} for n in old.get("features", ["x1", "x2"])]
     return {
         "format": "slackline-experiment",
-        "version": 1,
+        "version": 2,
         "written": {"at": None, "slackline": None, "python": None, "numpy": None,
                     "cvxopt": None, "migrated_from": 0},
         "note": old.get("note"),
@@ -68,7 +72,7 @@ def v0_to_v1(old: dict) -> dict:
 
 
 def _v0_config(old: dict) -> dict:
-    old = dict(old)
+    old = _v1_names(dict(old))
     data = FitConfig().to_dict()
     C = old.pop("C", data["C"])
     data["hard_margin"] = C == "hard"          # version 0 wrote a hard margin as C = "hard"
@@ -86,4 +90,35 @@ def _v0_config(old: dict) -> dict:
         raise ValueError(str(exc)) from None
 
 
-MIGRATIONS = {0: v0_to_v1}
+# version 1 spellings -> version 2 spellings
+V1_KERNELS = {"poly": "polynomial"}
+V1_SCALINGS = {"standard": "zscore", "minmax": "range"}
+
+
+def _v1_names(settings: dict) -> dict:
+    """A config or model object with the version 1 names replaced (a new dict)."""
+    settings = dict(settings)
+    if "coef0" in settings:
+        settings["offset"] = settings.pop("coef0")
+    if isinstance(settings.get("kernel"), str):
+        settings["kernel"] = V1_KERNELS.get(settings["kernel"], settings["kernel"])
+    if isinstance(settings.get("scaling"), str):
+        settings["scaling"] = V1_SCALINGS.get(settings["scaling"], settings["scaling"])
+    return settings
+
+
+def v1_to_v2(old: dict) -> dict:
+    new = dict(old)
+    new["version"] = 2
+    if isinstance(old.get("written"), dict):
+        new["written"] = {**old["written"], "migrated_from": old["written"].get("migrated_from", 1)
+                          if old["written"].get("migrated_from") is not None else 1}
+    if isinstance(old.get("config"), dict):
+        new["config"] = _v1_names(old["config"])
+    results = old.get("results")
+    if isinstance(results, dict) and isinstance(results.get("model"), dict):
+        new["results"] = {**results, "model": _v1_names(results["model"])}
+    return new
+
+
+MIGRATIONS = {0: v0_to_v1, 1: v1_to_v2}

@@ -27,8 +27,8 @@ def poly_exponents(degree: int) -> list[tuple[int, int, int]]:
     return [(i, j, degree - i - j) for i in range(degree + 1) for j in range(degree + 1 - i)]
 
 
-def poly_feature_map(X: np.ndarray, gamma: float, degree: int, coef0: float) -> np.ndarray:
-    """phi(x) with phi(x).phi(z) = (gamma x.z + coef0) ** degree exactly.
+def poly_feature_map(X: np.ndarray, gamma: float, degree: int, offset: float) -> np.ndarray:
+    """phi(x) with phi(x).phi(z) = (gamma x.z + offset) ** degree exactly.
 
     Multinomial expansion with u = sqrt(gamma) x:
       (u1 v1 + u2 v2 + c)^p = sum_{i+j+k=p} p!/(i! j! k!) (u1 v1)^i (u2 v2)^j c^k,
@@ -38,15 +38,15 @@ def poly_feature_map(X: np.ndarray, gamma: float, degree: int, coef0: float) -> 
     columns = []
     for i, j, k in poly_exponents(degree):
         coefficient = sqrt(factorial(degree) / (factorial(i) * factorial(j) * factorial(k))
-                           * coef0 ** k)
+                           * offset ** k)
         if coefficient == 0.0:
-            continue  # coef0 = 0 drops every term with k > 0
+            continue  # offset = 0 drops every term with k > 0
         columns.append(coefficient * U[:, 0] ** i * U[:, 1] ** j)
     return np.column_stack(columns)
 
 
-def feature_map(X: np.ndarray, kernel: str, gamma: float, degree: int, coef0: float):
+def feature_map(X: np.ndarray, kernel: str, gamma: float, degree: int, offset: float):
     """Explicit features for the primal solver (linear: the points themselves)."""
     if kernel == "linear":
         return X
-    return poly_feature_map(X, gamma, degree, coef0)
+    return poly_feature_map(X, gamma, degree, offset)

@@ -17,7 +17,7 @@ import numpy as np
 from solver.study.crossval import CVEstimate
 from solver.result import STATUS_TEXT, FitResult
 
-SETTINGS_COMPARED = ("C", "hard_margin", "kernel", "gamma", "degree", "coef0",
+SETTINGS_COMPARED = ("C", "hard_margin", "kernel", "gamma", "degree", "offset",
                      "weight_positive", "weight_negative", "scaling")
 
 

@@ -62,7 +62,7 @@ def _cause(comparison: Comparison) -> str:
         verb = "lowering" if after.C < before.C else "raising"
         parts.append(f"{verb} C from {setting(before.C)} to {setting(after.C)}")
     for name, label in (("kernel", "the kernel"), ("gamma", "gamma"), ("degree", "the degree"),
-                        ("coef0", "coef0"), ("weight_positive", "the weight of class +1"),
+                        ("offset", "offset"), ("weight_positive", "the weight of class +1"),
                         ("weight_negative", "the weight of class -1"),
                         ("scaling", "the scaling")):
         if name in changed:

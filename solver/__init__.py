@@ -9,12 +9,13 @@ from solver.errors import (ConvergenceError, FileFormatError, InputError, NotSep
                      SlacklineError)
 from solver.fit import fit, validate_points
 from solver.model import DecisionModel
+from solver.qp.path import CPath, PathEvent, compute_path
 from solver.result import STATUS_TEXT, STATUSES, FitResult, KKTResiduals
 
 __version__ = "0.1.0"
 
 __all__ = [
     "fit", "validate_points", "FitConfig", "SolverOptions", "FitResult", "KKTResiduals",
-    "DecisionModel", "STATUSES", "STATUS_TEXT", "SlacklineError", "InputError",
+    "DecisionModel", "compute_path", "CPath", "PathEvent", "STATUSES", "STATUS_TEXT", "SlacklineError", "InputError",
     "NotSeparableError", "ConvergenceError", "FileFormatError", "__version__",
 ]

@@ -21,12 +21,14 @@ def add_data_arguments(parser: argparse.ArgumentParser) -> None:
                         help="skip rows with a missing or non-numeric feature (listed on stderr)")
 
 
-def add_config_arguments(parser: argparse.ArgumentParser) -> None:
-    margin = parser.add_mutually_exclusive_group()
-    margin.add_argument("--C", dest="C", type=_number("C"), default=1.0,
-                        help="regularisation strength, a positive number (default 1)")
-    margin.add_argument("--hard", action="store_true",
-                        help="hard margin (C = infinity): no slack allowed")
+def add_config_arguments(parser: argparse.ArgumentParser, with_c: bool = True) -> None:
+    """The fit settings; ``with_c`` False leaves out --C and --hard (commands over a C range)."""
+    if with_c:
+        margin = parser.add_mutually_exclusive_group()
+        margin.add_argument("--C", dest="C", type=_number("C"), default=1.0,
+                            help="regularisation strength, a positive number (default 1)")
+        margin.add_argument("--hard", action="store_true",
+                            help="hard margin (C = infinity): no slack allowed")
     parser.add_argument("--kernel", choices=("linear", "polynomial", "rbf"), default="linear")
     parser.add_argument("--gamma", type=_number("gamma"), default=0.5,
                         help="kernel width for rbf and poly (default 0.5)")
@@ -82,7 +84,8 @@ def config_from_args(args, dataset: Dataset) -> FitConfig:
         except ValueError:
             raise InputError(f"the class weight in --weight {item!r} must be a number") from None
     degree = int(args.degree) if float(args.degree).is_integer() else args.degree
-    return FitConfig(C=args.C, hard_margin=args.hard, kernel=args.kernel, gamma=args.gamma,
+    return FitConfig(C=getattr(args, "C", 1.0), hard_margin=getattr(args, "hard", False),
+                     kernel=args.kernel, gamma=args.gamma,
                      degree=degree, offset=args.offset, weight_positive=weights[1],
                      weight_negative=weights[-1], scaling=args.scale)
 

@@ -19,6 +19,7 @@ COMMANDS = {
     "check": ("cli.check", "re-run an experiment file and compare its numbers"),
     "export": ("cli.export", "write an experiment's points table or model card"),
     "sweep": ("cli.sweep", "fit across a range of C with cross-validation"),
+    "path": ("cli.path", "the exact C path: every breakpoint and event over a range of C"),
     "render": ("cli.render", "draw an experiment's canvas to a PNG/SVG file, no window"),
 }
 

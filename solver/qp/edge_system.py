@@ -25,7 +25,7 @@ from __future__ import annotations
 import numpy as np
 
 _REBUILD = 40           # changes between rebuilds of the inverse from scratch
-_DIRECT = 12            # up to this many points: solve M afresh (LU) instead
+_DIRECT = 12            # up to this many points: invert M afresh after every change
 _DEPENDENT = 1e-9       # Schur complement / diagonal below this: a dependent point
 
 
@@ -39,6 +39,7 @@ class EdgeSystem:
     def __init__(self, gram):
         self.gram = gram            # supplies q_block(I, J) = Q_IJ and y
         self.index: list[int] = []
+        self._indices = np.zeros(0, dtype=int)
         self._position: dict[int, int] = {}
         self._inverse = np.zeros((0, 0))
         self._matrix = np.zeros((0, 0))     # M itself, for refinement
@@ -53,7 +54,7 @@ class EdgeSystem:
         return j in self._position
 
     def indices(self) -> np.ndarray:
-        return np.array(self.index, dtype=int)
+        return self._indices
 
     # -- changes -----------------------------------------------------------
     def add(self, j: int) -> bool:
@@ -75,6 +76,10 @@ class EdgeSystem:
         if abs(schur) <= _DEPENDENT * max(abs(q), self._scale):
             return False
         m = len(E)
+        if m < _DIRECT:                      # small: a fresh inverse is cheaper than updates
+            self._set_index(E + [j])
+            self.rebuild()
+            return True
         # [[M, u], [u', q]]^-1, with the new row placed before b's row
         grown = np.empty((m + 2, m + 2))
         core = self._inverse + np.outer(Minv_u, Minv_u) / schur
@@ -103,7 +108,7 @@ class EdgeSystem:
         rest = [i for i in range(len(self.index) + 1) if i != k]
         B = self._inverse
         pivot = B[k, k]
-        if len(self.index) == 1 or abs(pivot) < 1e-14 * np.abs(B).max():
+        if len(self.index) <= _DIRECT or abs(pivot) < 1e-14 * np.abs(B).max():
             self._set_index([i for i in self.index if i != j])
             self.rebuild()
             return
@@ -135,25 +140,19 @@ class EdgeSystem:
         if not self.index:
             return np.zeros(0), None
         rhs = np.append(rhs_edge, rhs_sum)
-        if len(self.index) <= _DIRECT:
-            try:
-                x = np.linalg.solve(self._matrix, rhs)          # LU: backward stable
-                x += np.linalg.solve(self._matrix, rhs - self._matrix @ x)
-            except np.linalg.LinAlgError:
-                raise PathTrouble(f"the edge system of {len(self)} points is singular") \
-                    from None
-        else:
-            x = self._inverse @ rhs
-            # one step of refinement against M itself (the inverse carries the rounding)
-            x += self._inverse @ (rhs - self._matrix @ x)
+        x = self._inverse @ rhs
+        # one step of refinement against M itself (the inverse carries the rounding)
+        x += self._inverse @ (rhs - self._matrix @ x)
         return x[:-1], float(x[-1])
 
     # -- internals ---------------------------------------------------------
     def _set_index(self, index: list[int]) -> None:
         self.index = [int(i) for i in index]
+        self._indices = np.array(self.index, dtype=int)
+        self._indices.setflags(write=False)
         self._position = {j: k for k, j in enumerate(self.index)}
 
     def _count_change(self) -> None:
         self._changes += 1
-        if self._changes >= _REBUILD:
-            self.rebuild()
+        if self._changes >= _REBUILD or len(self.index) <= _DIRECT:
+            self.rebuild()            # small systems: a fresh inverse costs next to nothing

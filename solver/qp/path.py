@@ -186,7 +186,8 @@ def compute_path(X, y, config: FitConfig | None = None, c_from: float = DEFAULT_
     walk = _Walk(X, y, config, Tracer(gram, weights))
     # thousands of small products: BLAS threads only contend (12x slower measured
     # on a loaded two-core machine for a 1,000 x 1,000 product)
-    with threadpool_limits(limits=1, user_api="blas"):
+    with threadpool_limits(limits=1, user_api="blas"), \
+            np.errstate(divide="ignore", invalid="ignore"):
         walk.run(float(c_from), float(c_to), progress, cancel)
     return CPath(config=config, X=X, y=y, Xs=Xs, shift=shift, scale=scale, weights=weights,
                  c_from=float(c_from), c_to=float(c_to), starts=np.array(walk.starts),
@@ -219,8 +220,8 @@ class _Walk:
             steps += 1
             before = {int(j): self._status(codes, j) for j in event_points}
             try:
-                candidates = np.union1d(event_points, tracer.edge_candidates())
-                changes = tracer.settle(candidates[tracer.code[candidates] != EDGE])
+                candidates = set(event_points.tolist()) | set(tracer.edge_candidates().tolist())
+                changes = tracer.settle([j for j in candidates if tracer.code[j] != EDGE])
                 tracer.exact_edge()
                 if steps % CHECK_EVERY == 0:
                     tracer.refresh()

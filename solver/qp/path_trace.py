@@ -221,25 +221,24 @@ class Tracer:
     # -- one segment ------------------------------------------------------------
     def advance(self, C_stop: float):
         """Move to the next breakpoint (or C_stop).  Returns the segment and the
-        points whose event ends it: (segment dict, event points)."""
+        points whose event ends it: (segment dict, event points).  Call it under
+        np.errstate(divide="ignore", invalid="ignore"): its ratios divide by zero."""
         C, w = self.C, self.weights
         slope_E, slope_b = self.slopes()
         E = self.edge.indices()
         s = self.gram.margin_slope(E, slope_E, slope_b)
         s[E] = 0.0
         gap = 1.0 - self.margin
-        with np.errstate(divide="ignore", invalid="ignore"):
-            reach = gap / s                               # L or R point reaches the edge
+        reach = gap / s                     # L or R point reaches the edge (0/0 masked below)
         reach[~((gap * s > 0) & (np.abs(gap) > ON_EDGE))] = np.inf
         reach[E] = np.inf
         if len(E):
-            with np.errstate(divide="ignore", invalid="ignore"):
-                # slopes within _SIGN of a bound's are rounding (settle's test too)
-                falling = slope_E < -_SIGN * w[E]
-                to_zero = np.where(falling, -self.alpha_edge / slope_E, np.inf)
-                top_gap = C * w[E] - self.alpha_edge
-                rising = slope_E > w[E] * (1 + _SIGN)
-                to_top = np.where(rising, top_gap / (slope_E - w[E]), np.inf)
+            # slopes within _SIGN of a bound's are rounding (settle's test too)
+            falling = slope_E < -_SIGN * w[E]
+            to_zero = np.where(falling, -self.alpha_edge / slope_E, np.inf)
+            top_gap = C * w[E] - self.alpha_edge
+            rising = slope_E > w[E] * (1 + _SIGN)
+            to_top = np.where(rising, top_gap / (slope_E - w[E]), np.inf)
             to_zero = np.maximum(to_zero, 0.0)
             to_top = np.maximum(to_top, 0.0)
             reach[E] = np.minimum(to_zero, to_top)

@@ -7,7 +7,6 @@ import time
 import numpy as np
 
 from solver import scaling
-from solver import kernels
 from solver.config import FitConfig
 from solver.errors import ConvergenceError, InputError
 from solver.model import DecisionModel
@@ -70,7 +69,7 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
     penalties = np.array([config.penalty(sign) for sign in (1, -1)])[(y < 0).astype(int)]
 
     if config.uses_feature_map:
-        phi = kernels.feature_map(Xs, config.kernel, config.gamma, config.degree, config.offset)
+        phi = config.kernel_spec.features(Xs, config)
         guess = None if warm_start is None else y * warm_start.decision_function(X)
         sol = solve_primal(phi, y, None if config.hard_margin else penalties, config.options,
                            guess_margin=guess)
@@ -83,7 +82,8 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
         rounds, working_set = 1, len(y)
     else:
         guess, alpha_start = _warm_start_guess(warm_start, X, y, config, penalties)
-        kernel_matrix = lambda A, B: kernels.rbf_matrix(A, B, config.gamma)  # noqa: E731
+        kernel = config.kernel_spec
+        kernel_matrix = lambda A, B: kernel.gram(A, B, config)  # noqa: E731
         sol = solve_dual(Xs, y, penalties, kernel_matrix, config.options, guess_margin=guess,
                          alpha_start=alpha_start)
         alpha = sol.alpha

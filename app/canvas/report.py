@@ -168,11 +168,9 @@ def _sweep_line(sweep) -> str:
 
 def _config_line(config) -> str:
     c_text = "hard margin" if config.hard_margin else f"C = {config.C:g}"
-    text = f"{config.kernel} kernel, {c_text}, scaling {config.scaling}"
-    if config.kernel in ("rbf", "polynomial"):
-        text += f", gamma = {config.gamma:g}"
-    if config.kernel == "polynomial":
-        text += f", degree {config.degree}, offset = {config.offset:g}"
+    text = f"{config.kernel_spec.title} kernel, {c_text}, scaling {config.scaling}"
+    for name in config.kernel_spec.parameters:
+        text += f", {name} = {getattr(config, name):g}"
     if (config.weight_positive, config.weight_negative) != (1.0, 1.0):
         text += (f", class weights +1: {config.weight_positive:g}, "
                  f"-1: {config.weight_negative:g}")

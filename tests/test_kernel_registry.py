@@ -71,7 +71,11 @@ def test_the_window_lists_a_registered_kernel(laplacian, qtbot):
     from app.document.document import Document
     from app.panels.controls import Controls
 
-    controls = Controls(Document())
-    qtbot.addWidget(controls)
-    titles = [controls.kernel.itemText(i) for i in range(controls.kernel.count())]
-    assert titles == ["linear", "polynomial", "Gaussian (RBF)", "Laplacian"]
+    document = Document()
+    try:
+        controls = Controls(document)
+        qtbot.addWidget(controls)
+        titles = [controls.kernel.itemText(i) for i in range(controls.kernel.count())]
+        assert titles == ["linear", "polynomial", "Gaussian (RBF)", "Laplacian"]
+    finally:
+        document.shutdown()

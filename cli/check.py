@@ -29,9 +29,9 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 
-from solver.errors import ConvergenceError, NotSeparableError
-from solver.files.experiment import load_experiment, provenance, results_to_dict
-from solver.fit import fit
+from solver import ConvergenceError, NotSeparableError
+from solver.files import load_experiment, provenance, results_to_dict
+from solver import fit
 
 RELATIVE = 1e-6
 OBJECTIVE_RELATIVE = 1e-7

@@ -6,10 +6,10 @@ import argparse
 import sys
 
 from solver import kernels, scaling
-from solver.config import FitConfig
-from solver.parameters import PARAMETERS
-from solver.files.dataset import Dataset, load_table
-from solver.errors import InputError
+from solver import FitConfig
+from solver import PARAMETERS
+from solver.files import Dataset, load_table
+from solver import InputError
 
 
 def add_data_arguments(parser: argparse.ArgumentParser) -> None:

@@ -10,7 +10,7 @@ import argparse
 import importlib
 import sys
 
-from solver.errors import SlacklineError
+from solver import SlacklineError
 
 # subcommand -> (module, one-line help); each module has add_arguments(parser)
 # and run(args) -> exit status.

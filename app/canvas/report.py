@@ -15,11 +15,11 @@ from pathlib import Path
 from PySide6.QtCore import QMarginsF, QRectF, QSizeF, QUrl
 from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPainter, QPdfWriter, QTextDocument
 
-from solver.study.compare import compare
-from solver.study.crossval import points_fingerprint
-from solver.errors import InputError
-from solver.study.narrative import summary
-from solver.result import STATUS_TEXT, STATUSES
+from solver.study import compare
+from solver.study import points_fingerprint
+from solver import InputError
+from solver.study import summary
+from solver import STATUS_TEXT, STATUSES
 
 CAUTIONS = ("A boundary tuned by eye on training points is not a validated model. "
             "Validate on held-out data before relying on it. Where the classifier decides "

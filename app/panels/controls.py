@@ -12,8 +12,8 @@ from PySide6.QtWidgets import (QButtonGroup, QCheckBox, QComboBox, QDoubleSpinBo
                                QVBoxLayout, QWidget, QGroupBox)
 
 from solver import kernels, scaling
-from solver.errors import InputError
-from solver.parameters import PARAMETERS
+from solver import InputError
+from solver import PARAMETERS
 
 LOG_C_MIN, LOG_C_MAX = -3.0, 4.0     # the slider spans C = 1e-3 .. 1e4
 SLIDER_STEPS = 700                   # 100 steps per decade

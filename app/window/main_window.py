@@ -253,7 +253,7 @@ class MainWindow(QMainWindow):
         return self.recover_from(path, original)
 
     def recover_from(self, path, original="") -> bool:
-        from solver.files.experiment import load_experiment
+        from solver.files import load_experiment
         try:
             experiment = load_experiment(path)
         except Exception:

@@ -22,7 +22,7 @@ import numpy as np
 from solver.files.atomic import atomic_open, atomic_write_text
 from solver.files.dataset import Dataset
 from solver.errors import InputError
-from solver.files.experiment import provenance, render, results_to_dict
+from solver.files.experiment import json_text, provenance, results_to_dict
 from solver import kernels
 
 # OWASP, "CSV Injection": cells starting with these characters are read as
@@ -104,7 +104,7 @@ def model_card(dataset: Dataset, result) -> dict:
 
 
 def write_model_card(path, dataset: Dataset, result) -> None:
-    atomic_write_text(path, render(model_card(dataset, result)))
+    atomic_write_text(path, json_text(model_card(dataset, result)))
 
 
 # -- helpers -------------------------------------------------------------------

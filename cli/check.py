@@ -30,7 +30,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from solver import ConvergenceError, NotSeparableError
-from solver.files import load_experiment, provenance, results_to_dict
+from solver.files import load_experiment, provenance
 from solver import fit
 
 RELATIVE = 1e-6
@@ -67,7 +67,7 @@ def run(args) -> int:
     except (NotSeparableError, ConvergenceError) as exc:
         print(f"{args.experiment}: DRIFT — the stored configuration no longer solves: {exc}")
         return 1
-    fresh = results_to_dict(result)
+    fresh = result.to_dict()
     comparisons = compare(stored, fresh, np.asarray(result.penalties))
     drifted = [c for c in comparisons if not c.agrees]
     changed = version_changes(experiment.written, provenance())

@@ -22,7 +22,7 @@ import numpy as np
 from solver.files.atomic import atomic_open, atomic_write_text
 from solver.files.dataset import Dataset
 from solver.errors import InputError
-from solver.files.experiment import json_text, provenance, results_to_dict
+from solver.files.experiment import json_text, provenance
 from solver import kernels
 
 # OWASP, "CSV Injection": cells starting with these characters are read as
@@ -111,7 +111,7 @@ def write_model_card(path, dataset: Dataset, result) -> None:
 def _figures(dataset: Dataset, result) -> dict:
     if result is None:
         raise InputError("there is no fit to export yet; fit the points first")
-    figures = result if isinstance(result, dict) else results_to_dict(result)
+    figures = result if isinstance(result, dict) else result.to_dict()
     if len(figures["decision"]) != len(dataset):
         raise InputError(f"the figures cover {len(figures['decision'])} points but the data "
                          f"set has {len(dataset)}; refit before exporting")

@@ -3,10 +3,10 @@
 from __future__ import annotations
 
 import json
+import math
 import sys
 
-from solver.fit import fit
-from solver.result import STATUS_TEXT, STATUSES, result_to_dict
+from solver import STATUS_TEXT, STATUSES, fit
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 
 
@@ -25,10 +25,14 @@ def run(args) -> int:
     print(f"labels: {dataset.mapping_text()}", file=sys.stderr)
     result = fit(dataset.X, dataset.y, config)
     if args.save:
-        from solver.files.experiment import save_experiment  # the file layer
+        from solver.files import save_experiment  # the file layer
         save_experiment(args.save, dataset, result)
     if args.json:
-        data = result_to_dict(result)
+        data = result.to_dict()
+        data["functional_margin"] = result.functional_margin.tolist()   # y_i f(x_i)
+        data["distance"] = _finite_list(result.distance)                 # y_i f(x_i) / |w|
+        if result.projection is not None:
+            data["projection"] = result.projection.tolist()               # w.x_i / |w|
         data["features"] = list(dataset.feature_names)
         data["label_mapping"] = {str(k): v for k, v in dataset.label_mapping.items()}
         json.dump(data, sys.stdout)
@@ -36,6 +40,10 @@ def run(args) -> int:
     else:
         print(summary_text(result, dataset))
     return 0
+
+
+def _finite_list(values) -> list:
+    return [float(v) if math.isfinite(v) else None for v in values]
 
 
 def summary_text(result, dataset) -> str:

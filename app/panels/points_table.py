@@ -16,7 +16,7 @@ from PySide6.QtCore import (QAbstractTableModel, QItemSelection, QItemSelectionM
 from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QHBoxLayout, QHeaderView, QLabel,
                                QTableView, QVBoxLayout, QWidget)
 
-from solver.result import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, STATUSES
+from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, STATUSES
 
 from app.panels.units import length_suffix
 

@@ -22,6 +22,7 @@ from app.panels.note import NoteEditor
 from app.panels.summary import Summary
 from app.window.status import StatusReadouts
 from app.window.workspace import Workspace
+from solver import kernels
 
 # each becomes a tab of the study area when its module is present
 OPTIONAL_PANELS = (("app.panels.sweep", "SweepPanel", "C sweep",
@@ -176,7 +177,7 @@ class MainWindow(QMainWindow):
         self.equal_axes_action.setChecked(equal)
         self.canvas.set_equal_axes(equal)
         kernel = settings.value("fit/last_kernel")
-        if kernel in ("linear", "polynomial", "rbf") and not self.document.X.size:
+        if kernel in kernels.names() and not self.document.X.size:
             self.document.set_config(self.document.config.with_changes(kernel=kernel))
             self.document.undo_stack.clear()
 
@@ -205,7 +206,7 @@ class MainWindow(QMainWindow):
         return self.recover_from(path, original)
 
     def recover_from(self, path, original="") -> bool:
-        from solver.files.experiment import load_experiment
+        from solver.files import load_experiment
         try:
             experiment = load_experiment(path)
         except Exception:

@@ -20,15 +20,23 @@ class ProvenanceTracker(QObject):
         self._source = None
         self._baseline = None
         document.points_changed.connect(self._points_changed)
-        self._points_changed()
+        document.path_changed.connect(self._path_changed)
+        self._remember()
+
+    def _remember(self):
+        doc = self.document
+        self._source = (doc.source, doc.sha256)
+        self._baseline = points_fingerprint(doc.X, doc.y)
 
     def _points_changed(self):
-        doc = self.document
-        source = (doc.source, doc.sha256)
-        # a newly opened file (empty history) or an import (a new source) sets the baseline
-        if source != self._source or doc.undo_stack.count() == 0:
-            self._source = source
-            self._baseline = points_fingerprint(doc.X, doc.y)
+        # an import brings a new source: its points are the new baseline
+        if (self.document.source, self.document.sha256) != self._source:
+            self._remember()
+
+    def _path_changed(self):
+        # a newly opened file starts with an empty history (a save keeps its history)
+        if self.document.undo_stack.count() == 0:
+            self._remember()
 
     def edited_since_import(self) -> bool:
         """True when the points came from a file and no longer equal what was read."""

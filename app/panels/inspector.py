@@ -74,7 +74,8 @@ class Inspector(QWidget):
             return
         self.values["decision"].setText(_g(result.decision[i]))
         self.values["margin"].setText(_g(result.functional_margin[i]))
-        self.values["distance"].setText(_g(result.distance[i]) + length_suffix(result, doc.units))
+        unit = length_suffix(result, doc.units)
+        self.values["distance"].setText(_g(result.distance[i]) + unit)
         if result.projection is not None:
             self.values["projection"].setText(_g(result.projection[i]))
         self.values["alpha"].setText(f"{_g(result.alpha[i])}  (C\u1d62 = {_g(result.penalties[i])})")

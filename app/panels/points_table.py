@@ -225,8 +225,9 @@ class PointsTable(QWidget):
         header.setSectionResizeMode(9, QHeaderView.ResizeToContents)
         header.setTextElideMode(Qt.ElideRight)
         self.view.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
-        self.view.setEditTriggers(QAbstractItemView.DoubleClicked | QAbstractItemView.EditKeyPressed
-                                  | QAbstractItemView.AnyKeyPressed)
+        triggers = QAbstractItemView
+        self.view.setEditTriggers(triggers.DoubleClicked | triggers.EditKeyPressed
+                                  | triggers.AnyKeyPressed)
         self.filter = QComboBox()
         self.filter.addItem("all points", None)
         for status in STATUSES:

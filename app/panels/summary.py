@@ -45,7 +45,7 @@ class Summary(QWidget):
             label.setToolTip(tip)
             label.setObjectName(f"summary_{key}")
             label.setTextInteractionFlags(label.textInteractionFlags() | _selectable())
-            label.setStyleSheet("font-family: monospace;" if key != "state" else "")
+            label.setStyleSheet("font-family: monospace;" if key not in ("state", "units") else "")
             label.setWordWrap(key in ("state", "units"))
             self.values[key] = label
             form.addRow(title, label)

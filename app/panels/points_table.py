@@ -235,6 +235,8 @@ class PointsTable(QWidget):
         self.filter.currentIndexChanged.connect(
             lambda _: self.proxy.set_status(self.filter.currentData()))
         self.filter.setToolTip("show every point, or only those with one status")
+        self.view.setToolTip("every point with its figures from the fit; double-click a "
+                             "coordinate or a label to type a new one (Ctrl+Z undoes)")
         self.refusal = QLabel("", objectName="points_refusal")
         self.refusal.setStyleSheet("color: #a4161a;")
         self.model.refused.connect(self.refusal.setText)

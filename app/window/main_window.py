@@ -9,6 +9,7 @@ from PySide6.QtGui import QAction, QKeySequence
 from PySide6.QtWidgets import QMainWindow, QMenu, QMessageBox
 
 from app.dialogs.about import show_about
+from app.dialogs.help_pages import READING, shortcuts_html, show_page
 from app.canvas import geometry
 from app.canvas.canvas import Canvas
 from app.panels.controls import Controls
@@ -21,6 +22,7 @@ from app.document.recovery import RecoveryWriter, pending_recovery
 from app.panels.note import NoteEditor
 from app.panels.summary import Summary
 from app.window.status import StatusReadouts
+from app.window.tooltips import apply_tooltips
 from app.window.workspace import Workspace
 from solver import kernels
 
@@ -60,6 +62,7 @@ class MainWindow(QMainWindow):
         self.recovery = RecoveryWriter(self.document, self)
         self._build_status_bar()
         self._build_menus()
+        apply_tooltips(self)
         self.setAcceptDrops(True)
         self.document.dirty_changed.connect(self._update_title)
         self.document.path_changed.connect(self._update_title)
@@ -140,7 +143,17 @@ class MainWindow(QMainWindow):
         for dock in self.docks.values():
             view.addAction(dock.toggleViewAction())
         help_menu = bar.addMenu("&Help")
+        self._action(help_menu, "Keyboard shortcuts", self.show_shortcuts, "F1")
+        self._action(help_menu, "Reading the canvas", self.show_reading)
+        help_menu.addSeparator()
         self._action(help_menu, "About Slackline", lambda: show_about(self))
+
+    def show_shortcuts(self):
+        self.help_page = show_page(self, "Keyboard shortcuts", shortcuts_html(self),
+                                   "help_shortcuts")
+
+    def show_reading(self):
+        self.help_page = show_page(self, "Reading the canvas", READING, "help_reading")
 
     def _fill_recent(self):
         self.recent_menu.clear()

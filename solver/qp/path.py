@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from threadpoolctl import threadpool_limits
 
-from solver import kernels, scaling
+from solver import scaling
 from solver.config import FitConfig
 from solver.errors import ConvergenceError, InputError
 from solver.qp.path_gram import KERNEL_LIMIT, FeatureGram, KernelGram
@@ -170,18 +170,19 @@ def compute_path(X, y, config: FitConfig | None = None, c_from: float = DEFAULT_
     if c_from >= c_to:
         raise InputError(f"the C range must run upwards: from ({c_from:g}) must be smaller "
                          f"than to ({c_to:g}); swap them")
-    if config.kernel == "rbf" and len(y) > KERNEL_LIMIT:
-        raise InputError(f"the exact C path with the rbf kernel holds the full kernel matrix "
+    if not config.uses_feature_map and len(y) > KERNEL_LIMIT:
+        raise InputError(f"the exact C path with the {config.kernel} kernel holds the full "
+                         f"kernel matrix "
                          f"and is limited to {KERNEL_LIMIT} points; got {len(y)} — use the "
                          f"sweep, or a subsample")
     started = time.perf_counter()
     shift, scale = scaling.scaling_parameters(X, config.scaling)
     Xs = scaling.apply(X, shift, scale)
+    kernel = config.kernel_spec
     if config.uses_feature_map:
-        gram = FeatureGram(kernels.feature_map(Xs, config.kernel, config.gamma, config.degree,
-                                               config.offset), y)
+        gram = FeatureGram(kernel.features(Xs, config), y)
     else:
-        gram = KernelGram.rbf(Xs, y, config.gamma)
+        gram = KernelGram(kernel.gram(Xs, Xs, config), y)
     weights = np.where(y > 0, config.weight_positive, config.weight_negative).astype(float)
     walk = _Walk(X, y, config, Tracer(gram, weights))
     # thousands of small products: BLAS threads only contend (12x slower measured

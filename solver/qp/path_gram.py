@@ -4,7 +4,7 @@
 Every product goes through the weight vector, so memory is O(n m) and the
 sum over the points held at their bound is an m-vector.
 
-``KernelGram``: the RBF kernel as a full matrix (n up to ``KERNEL_LIMIT``);
+``KernelGram``: a kernel without a finite feature map (RBF) as a full matrix (n up to ``KERNEL_LIMIT``);
 the sum over held points is an n-vector kept up to date one column at a time.
 
 Both keep ``held`` = sum over L of w_j y_j k(., x_j) (w_j = C_j / C, the class
@@ -16,8 +16,6 @@ weight), so the decision function on a segment is
 from __future__ import annotations
 
 import numpy as np
-
-from solver import kernels
 
 KERNEL_LIMIT = 5000     # n x n floats: 200 MB at this size
 
@@ -76,10 +74,6 @@ class KernelGram:
         self.K = K
         self.y = y.astype(float)
         self._held = np.zeros(len(y))                # sum_L w_j y_j K[:, j]
-
-    @classmethod
-    def rbf(cls, Xs, y, gamma):
-        return cls(kernels.rbf_matrix(Xs, Xs, gamma), y)
 
     def q_diagonal(self) -> np.ndarray:
         return np.diagonal(self.K).copy()

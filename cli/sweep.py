@@ -109,6 +109,14 @@ def table_text(sweep, dataset) -> str:
             f"    largest C  = {suggestion.largest_C_within_one_se:.4g}  (less regularised)",
             f"    smallest C = {suggestion.smallest_C_within_one_se:.4g}  (more regularised, "
             f"the simpler model)"]
+    exact = sweep.exact_cv
+    if exact is not None:
+        best = exact.suggestion
+        lines += [
+            f"at every C (one exact C path per fold, {len(exact.knots)} steps of the CV error):",
+            f"  lowest CV error {best.best_error:.3f} (SE {best.best_standard_error:.3f}); "
+            f"within one SE for C from {best.smallest_C_within_one_se:.4g} to "
+            f"{best.largest_C_within_one_se:.4g}"]
     if sweep.cancelled:
         lines.append(f"cancelled after {len(sweep.C)} of {sweep.planned_steps} values of C")
     return "\n".join(lines)

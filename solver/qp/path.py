@@ -189,7 +189,13 @@ def compute_path(X, y, config: FitConfig | None = None, c_from: float = DEFAULT_
     # on a loaded two-core machine for a 1,000 x 1,000 product)
     with threadpool_limits(limits=1, user_api="blas"), \
             np.errstate(divide="ignore", invalid="ignore"):
-        walk.run(float(c_from), float(c_to), progress, cancel)
+        try:
+            walk.run(float(c_from), float(c_to), progress, cancel)
+        except PathTrouble as trouble:
+            raise ConvergenceError(
+                f"the exact C path could not be continued at C = {walk.tracer.C:.6g} "
+                f"({trouble}); try scaling the features (zscore) or a narrower C range"
+            ) from None
     return CPath(config=config, X=X, y=y, Xs=Xs, shift=shift, scale=scale, weights=weights,
                  c_from=float(c_from), c_to=float(c_to), starts=np.array(walk.starts),
                  events=tuple(walk.events), reanchors=tuple(walk.reanchors),

@@ -68,7 +68,7 @@ class SweepSettings:
 
 def run_sweep(X, y, config: FitConfig | None = None, settings: SweepSettings | None = None,
               *, progress=None, cancel=None, n_jobs=None, block: int | None = None,
-              warm_start: bool = True) -> SweepResult:
+              warm_start: bool = True, exact: bool = True) -> SweepResult:
     """Sweep C over ``settings``' grid; every other setting comes from ``config``.
 
     progress(done, total)  called after each block of fits (counts of fits)
@@ -79,6 +79,9 @@ def run_sweep(X, y, config: FitConfig | None = None, settings: SweepSettings | N
                            the surrounding ``joblib.parallel_config``)
     block                  C values per job (default: a tenth of the grid)
     warm_start             False solves every C cold (for the benchmark)
+    exact                  also follow one exact C path per fold over the range: the CV
+                           error at every C as a step function (``exact_cv``; None if
+                           a path fails or the sweep was cancelled)
 
     ``config.hard_margin`` is ignored: a sweep varies a finite C.
     """
@@ -127,6 +130,14 @@ def run_sweep(X, y, config: FitConfig | None = None, settings: SweepSettings | N
             if progress is not None:
                 progress(finished * len(lanes), total)
     kept = slice(0, finished)
+    exact_cv = None
+    if exact and not cancelled:
+        from solver.study.exact_cv import exact_cross_validation
+        try:
+            exact_cv = exact_cross_validation(X, y, config, settings.c_from, settings.c_to,
+                                              folds, settings.seed)
+        except _FIT_ERRORS:
+            exact_cv = None
     return SweepResult(
         config=config, C=grid[kept], folds=folds, seed=settings.seed,
         fingerprint=points_fingerprint(X, y), n_points=len(y),
@@ -136,7 +147,7 @@ def run_sweep(X, y, config: FitConfig | None = None, settings: SweepSettings | N
         half_norm_w2=whole["half_norm_w2"][kept], penalty_term=whole["penalty_term"][kept],
         fold_errors=fold_errors[kept], failures=tuple(failures), cancelled=cancelled,
         seconds=time.perf_counter() - start, planned_steps=len(grid), warm_start=warm_start,
-        settings=settings)
+        settings=settings, exact_cv=exact_cv)
 
 
 def _empty_whole(steps: int) -> dict:

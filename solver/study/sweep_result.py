@@ -93,6 +93,7 @@ class SweepResult:
     planned_steps: int
     warm_start: bool = True
     settings: object = None      # the SweepSettings it ran with
+    exact_cv: object = None      # ExactCrossValidation: the CV error at every C (exact paths)
 
     def __post_init__(self):
         for name in ("C", "margin_width", "n_support", "training_error", "half_norm_w2",
@@ -198,6 +199,7 @@ class SweepResult:
             "failures": [failure.to_dict() for failure in self.failures],
             "cancelled": self.cancelled, "planned_steps": self.planned_steps,
             "warm_start": self.warm_start, "seconds": self.seconds,
+            "exact_cv": None if self.exact_cv is None else self.exact_cv.to_dict(),
         }
 
 

@@ -106,6 +106,10 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
     dual = float(alpha.sum()) - 0.5 * dual_quadratic
     relative_gap = abs(primal - dual) / max(1.0, abs(primal))
     status, support = _classify(alpha, penalties, slack, margin, relative_gap)
+    # alphas within the solver's accuracy of 0 or C_i are reported as exactly that,
+    # so status and alpha agree everywhere (inspector, table, --json, exports);
+    # the objectives above stay those of the iterate the solver reached
+    alpha = _snap_to_bounds(alpha, penalties, relative_gap)
     kkt = _kkt_residuals(alpha, penalties, y, margin, slack, status)
     # cvxopt may stop on a singular KKT system a step short of its own test;
     # the optimum is still in hand when our own gap and KKT figures say so.
@@ -155,12 +159,23 @@ def _alpha_tolerance(relative_gap: float) -> float:
     return float(np.clip(np.sqrt(relative_gap), 1e-8, 1e-4))
 
 
-def _classify(alpha, penalties, slack, margin, relative_gap):
-    tau = _alpha_tolerance(relative_gap)
+def _bound_masks(alpha, penalties, tau):
+    """(alpha is 0, alpha is C_i) to relative accuracy ``tau``; hard margin has no C_i."""
     finite = np.isfinite(penalties)
     scale = np.where(finite, penalties, max(float(alpha.max()), 1e-300))
     is_zero = alpha <= tau * scale
     at_bound = finite & (alpha >= (1.0 - tau) * np.where(finite, penalties, 0.0))
+    return is_zero, at_bound
+
+
+def _snap_to_bounds(alpha, penalties, relative_gap):
+    is_zero, at_bound = _bound_masks(alpha, penalties, _alpha_tolerance(relative_gap))
+    return np.where(is_zero, 0.0, np.where(at_bound, penalties, alpha))
+
+
+def _classify(alpha, penalties, slack, margin, relative_gap):
+    tau = _alpha_tolerance(relative_gap)
+    is_zero, at_bound = _bound_masks(alpha, penalties, tau)
     margin_tol = max(1e-7, tau)
     status = np.full(len(alpha), ON_MARGIN, dtype=object)
     status[is_zero] = OUTSIDE

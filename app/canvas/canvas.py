@@ -19,6 +19,7 @@ from PySide6.QtWidgets import QGraphicsRectItem, QLabel
 from app.canvas import geometry
 from app.canvas.palette import palette
 from app.canvas.scene import SceneItems
+from app.document.document import METADATA, PINNED, POINTS, RESULT, SELECTION
 
 HIT_RADIUS_PX = 9
 _drag_ids = itertools.count(1)
@@ -125,10 +126,7 @@ class Canvas(pg.PlotWidget):
         self._view_timer = QTimer(self, singleShot=True, interval=40)
         self._view_timer.timeout.connect(self._refresh_view)
         view.sigRangeChanged.connect(self._range_changed)
-        document.points_changed.connect(self._points_changed)
-        document.result_changed.connect(self._result_changed)
-        document.selection_changed.connect(self._selection_changed)
-        document.pinned_changed.connect(self._pinned_changed)
+        document.changed.connect(self._document_changed)
         self.fit_view_to_data()
         self._points_changed()
 
@@ -179,6 +177,16 @@ class Canvas(pg.PlotWidget):
         doc.add_point(x, y, sign)
 
     # -- document -> items -------------------------------------------------------
+    def _document_changed(self, changes):
+        if changes & {POINTS, METADATA}:
+            self._points_changed()
+        if changes & {POINTS, RESULT}:
+            self._result_changed()
+        elif SELECTION in changes:
+            self._selection_changed()
+        if PINNED in changes:
+            self._pinned_changed()
+
     def _points_changed(self):
         doc = self.document
         self.scene_items.set_points(doc.X, doc.y)

@@ -16,6 +16,7 @@ from solver.study.narrative import summary
 from solver.result import STATUS_TEXT
 
 from app.document.background import BackgroundTask
+from app.document.document import PINNED, RESULT
 from app.document.sweep_store import sweep_store
 
 QUICK_FOLDS = 5
@@ -30,9 +31,8 @@ class ComparePanel(QWidget):
         self.task = None
         self._cv_cache = {}           # (points fingerprint, config) -> CVEstimate
         self._build()
-        for signal in (document.result_changed, document.pinned_changed,
-                       self.store.sweep_changed):
-            signal.connect(self.refresh)
+        document.changed.connect(self._document_changed)
+        self.store.sweep_changed.connect(self.refresh)
         self.refresh()
 
     def _build(self):
@@ -74,6 +74,10 @@ class ComparePanel(QWidget):
             if estimate is not None:
                 return estimate
         return self._cv_cache.get(_key(result))
+
+    def _document_changed(self, changes):
+        if changes & {RESULT, PINNED}:
+            self.refresh()
 
     def refresh(self):
         document = self.document

@@ -13,6 +13,8 @@ from PySide6.QtWidgets import (QButtonGroup, QCheckBox, QComboBox, QDoubleSpinBo
 
 from solver.errors import InputError
 
+from app.document.document import CONFIG, METADATA, POINTS
+
 LOG_C_MIN, LOG_C_MAX = -3.0, 4.0     # the slider spans C = 1e-3 .. 1e4
 SLIDER_STEPS = 700                   # 100 steps per decade
 _gestures = itertools.count(1)
@@ -117,8 +119,7 @@ class Controls(QWidget):
         self.weight_negative.valueChanged.connect(lambda v: self._change(weight_negative=float(v)))
         self.scaling.currentTextChanged.connect(lambda text: self._change(scaling=text))
         self.new_class.idToggled.connect(self._new_class_toggled)
-        document.config_changed.connect(self.show_config)
-        document.points_changed.connect(self._show_class_names)
+        document.changed.connect(self._document_changed)
         self.show_config()
         self._show_class_names()
 
@@ -160,6 +161,12 @@ class Controls(QWidget):
             self.canvas.new_point_sign = sign
 
     # -- document -> widgets -------------------------------------------------------
+    def _document_changed(self, changes):
+        if CONFIG in changes:
+            self.show_config()
+        if changes & {POINTS, METADATA}:
+            self._show_class_names()
+
     def show_config(self):
         config = self.document.config
         self._updating = True

@@ -12,6 +12,8 @@ from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QHBoxLayout, QHeade
 
 from solver.result import STATUS_TEXT, STATUSES
 
+from app.document.document import METADATA, POINTS, RESULT, SELECTION
+
 COLUMNS = ("#", "x1", "x2", "label", "f(x)", "y\u00b7f", "distance", "alpha", "slack",
            "status")
 SORT_ROLE = Qt.UserRole + 1
@@ -24,9 +26,14 @@ class PointsModel(QAbstractTableModel):
         self._result = None
         self._refresh = QTimer(self, singleShot=True, interval=REFRESH_MS)
         self._refresh.timeout.connect(self._result_changed)
-        document.points_changed.connect(self._reset)
-        document.result_changed.connect(self._refresh.start)
+        document.changed.connect(self._document_changed)
         self._reset()
+
+    def _document_changed(self, changes):
+        if changes & {POINTS, METADATA}:
+            self._reset()
+        elif RESULT in changes:
+            self._refresh.start()
 
     def _matching_result(self):
         doc, result = self.document, self.document.result
@@ -157,10 +164,14 @@ class PointsTable(QWidget):
         layout.addWidget(self.view)
         self._syncing = False
         self.view.selectionModel().selectionChanged.connect(self._table_selected)
-        document.selection_changed.connect(self._document_selected)
+        document.changed.connect(self._selection_may_have_changed)
         self.model.modelReset.connect(self._document_selected)
         self.model.modelReset.connect(self._fit_headers)
         self._fit_headers()
+
+    def _selection_may_have_changed(self, changes):
+        if SELECTION in changes:
+            self._document_selected()
 
     def _fit_headers(self):
         """Feature columns as wide as their names (with units), so none is cut."""

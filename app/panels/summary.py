@@ -6,6 +6,8 @@ from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver.result import INSIDE, MISCLASSIFIED, ON_MARGIN
 
+from app.document.document import RESULT
+
 ROWS = (
     ("w", "w (weight vector)"),
     ("b", "b (intercept)"),
@@ -40,12 +42,15 @@ class Summary(QWidget):
             label.setWordWrap(key == "state")
             self.values[key] = label
             form.addRow(title, label)
-        document.result_changed.connect(self.refresh)
-        document.solve_failed.connect(lambda _message: self.refresh())
+        document.changed.connect(self._document_changed)
         self.refresh()
 
     def text(self, key: str) -> str:
         return self.values[key].text()
+
+    def _document_changed(self, changes):
+        if RESULT in changes:
+            self.refresh()
 
     def refresh(self):
         doc, result = self.document, self.document.result

@@ -14,6 +14,7 @@ from solver.errors import SlacklineError
 from solver.study.sweep import SweepSettings, run_sweep
 
 from app.document.background import BackgroundTask
+from app.document.document import CONFIG, POINTS
 from app.panels.sweep_chart import SweepChart
 from app.document.sweep_store import sweep_store
 
@@ -33,8 +34,7 @@ class SweepPanel(QWidget):
         self.chart = SweepChart(self)
         self._build()
         self.chart.C_clicked.connect(self._on_chart_click)
-        document.points_changed.connect(self._refresh_staleness)
-        document.config_changed.connect(self._on_config_changed)
+        document.changed.connect(self._document_changed)
         self.store.sweep_changed.connect(self._show_sweep)
         self._on_config_changed()
         self._show_sweep()
@@ -216,6 +216,12 @@ class SweepPanel(QWidget):
             f"(more regularised, simpler).<br><i>{SUGGESTION_NOTE}</i>")
 
     # -- commands to the document -----------------------------------------------
+    def _document_changed(self, changes):
+        if CONFIG in changes:
+            self._on_config_changed()
+        elif POINTS in changes:
+            self._refresh_staleness()
+
     def _on_config_changed(self):
         config = self.document.config
         self.chart.set_marker(None if config.hard_margin else config.C)

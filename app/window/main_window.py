@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import importlib
 from pathlib import Path
 
 from PySide6.QtCore import QSettings, Qt
@@ -13,17 +12,10 @@ from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QMenu, QMessage
 from app.dialogs.about import show_about
 from app.canvas import geometry
 from app.canvas.canvas import Canvas
-from app.panels.controls import Controls
-from app.document.document import Document
+from app.document.document import DIRTY, ERROR, PATH, RESULT, Document
 from app.window.file_actions import FileActions
-from app.panels.inspector import Inspector
-from app.panels.points_table import PointsTable
 from app.document.recovery import RecoveryWriter, pending_recovery
-from app.panels.summary import Summary
-
-# panels written elsewhere; each docks itself in when its module is present
-OPTIONAL_PANELS = (("app.panels.sweep", "SweepPanel", "C sweep"),
-                   ("app.panels.compare", "ComparePanel", "Compare"))
+from app.window.panels import PANELS
 
 
 class MainWindow(QMainWindow):
@@ -35,35 +27,21 @@ class MainWindow(QMainWindow):
         self.document = document or Document(self)
         self.canvas = Canvas(self.document)
         self.setCentralWidget(self.canvas)
-        self.controls = Controls(self.document, self.canvas)
-        self.summary = Summary(self.document)
-        self.inspector = Inspector(self.document)
-        self.points_table = PointsTable(self.document)
         self.docks = {}
-        self._dock("Fit settings", self.controls, Qt.LeftDockWidgetArea, scroll=True)
-        self._dock("Summary", self.summary, Qt.LeftDockWidgetArea)
-        self._dock("Point", self.inspector, Qt.RightDockWidgetArea)
-        self._dock("Points", self.points_table, Qt.RightDockWidgetArea)
-        self.optional_panels = {}
-        for module_name, class_name, title in OPTIONAL_PANELS:
-            try:
-                panel_class = getattr(importlib.import_module(module_name), class_name)
-            except (ImportError, AttributeError):
-                continue
-            panel = panel_class(self.document)
-            self.optional_panels[class_name] = panel
-            dock = self._dock(title, panel, Qt.BottomDockWidgetArea)
-            dock.hide()
+        self.panels = {}
+        for spec in PANELS:      # declared once, in app/window/panels.py
+            panel = spec.build(self.document, self.canvas)
+            self.panels[spec.name] = panel
+            setattr(self, spec.name, panel)
+            dock = self._dock(spec.title, panel, spec.area, scroll=spec.scroll)
+            dock.setVisible(spec.shown)
         self.files = FileActions(self, self.document, self.canvas)
         self.recovery = RecoveryWriter(self.document, self)
         self._build_status_bar()
         self._build_menus()
         self.setAcceptDrops(True)
-        self.document.dirty_changed.connect(self._update_title)
-        self.document.path_changed.connect(self._update_title)
+        self.document.changed.connect(self._document_changed)
         self.document.busy_changed.connect(self._busy)
-        self.document.solve_failed.connect(self._solve_failed)
-        self.document.result_changed.connect(self._result_changed)
         self.resize(1280, 800)
         self.resizeDocks([self.docks["Fit settings"], self.docks["Point"]], [300, 330],
                          Qt.Horizontal)
@@ -181,6 +159,14 @@ class MainWindow(QMainWindow):
         self.recent_menu.setEnabled(bool(self.files.recent()))
 
     # -- document -> window ----------------------------------------------------------
+    def _document_changed(self, changes):
+        if changes & {DIRTY, PATH}:
+            self._update_title()
+        if ERROR in changes:
+            self._solve_failed(self.document.last_error)
+        if RESULT in changes:
+            self._result_changed()
+
     def _update_title(self, *_):
         name = Path(self.document.path).name if self.document.path else "untitled"
         self.setWindowTitle(f"{name}[*] \u2014 Slackline")

@@ -6,9 +6,8 @@ import itertools
 import math
 
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QDoubleValidator
 from PySide6.QtWidgets import (QButtonGroup, QCheckBox, QComboBox, QDoubleSpinBox, QFormLayout,
-                               QHBoxLayout, QLineEdit, QRadioButton, QSlider, QSpinBox,
+                               QHBoxLayout, QLabel, QLineEdit, QRadioButton, QSlider, QSpinBox,
                                QVBoxLayout, QWidget, QGroupBox)
 
 from solver.errors import InputError
@@ -17,6 +16,7 @@ from app.document.document import CONFIG, METADATA, POINTS
 
 LOG_C_MIN, LOG_C_MAX = -3.0, 4.0     # the slider spans C = 1e-3 .. 1e4
 SLIDER_STEPS = 700                   # 100 steps per decade
+C_FIELD_TIP = "the exact value of C; press Enter to apply"
 _gestures = itertools.count(1)
 
 
@@ -51,10 +51,15 @@ class Controls(QWidget):
         self.slider = QSlider(Qt.Horizontal)
         self.slider.setRange(0, SLIDER_STEPS)
         self.slider.setToolTip("C on a logarithmic scale, 0.001 to 10000")
+        # no validator: a refused value stays in the field and the hint says why
         self.C_field = QLineEdit()
-        self.C_field.setValidator(QDoubleValidator(1e-300, 1e300, 12))
         self.C_field.setMaximumWidth(90)
-        self.C_field.setToolTip("the exact value of C; press Enter to apply")
+        self.C_field.setToolTip(C_FIELD_TIP)
+        self.hint = QLabel()
+        self.hint.setObjectName("settings_hint")
+        self.hint.setWordWrap(True)
+        self.hint.setStyleSheet("color: #b00020;")
+        self.hint.hide()
         self.hard = QCheckBox("hard margin (C = \u221e)")
         row = QHBoxLayout()
         row.addWidget(self.slider, 1)
@@ -62,12 +67,13 @@ class Controls(QWidget):
 
         self.kernel = QComboBox()
         self.kernel.addItems(["linear", "polynomial", "rbf"])
-        self.gamma = _spin(1e-4, 1e4, 4, 0.1)
+        # ranges start at 0 so that 0 can be typed and refused with its reason
+        self.gamma = _spin(0.0, 1e4, 4, 0.1)
         self.degree = QSpinBox()
         self.degree.setRange(1, 10)
         self.offset = _spin(0.0, 1e4, 3, 0.5)
-        self.weight_positive = _spin(1e-3, 1e3, 3, 0.1)
-        self.weight_negative = _spin(1e-3, 1e3, 3, 0.1)
+        self.weight_positive = _spin(0.0, 1e3, 3, 0.1)
+        self.weight_negative = _spin(0.0, 1e3, 3, 0.1)
         self.scaling = QComboBox()
         self.scaling.addItems(["none", "zscore", "range"])
         self.scaling.setToolTip("standard: zero mean, unit variance; minmax: onto [0, 1]. "
@@ -102,6 +108,7 @@ class Controls(QWidget):
 
         layout = QVBoxLayout(self)
         layout.addLayout(self.form)
+        layout.addWidget(self.hint)
         layout.addWidget(weights)
         layout.addWidget(adding)
         layout.addStretch(1)
@@ -138,12 +145,17 @@ class Controls(QWidget):
         self.document.set_C(C, merge_key=self._gesture)
 
     def _C_typed(self):
+        text = self.C_field.text().strip()
         try:
-            value = float(self.C_field.text())
+            value = float(text)
         except ValueError:
-            self.show_config()
+            self._refuse(self.C_field, f"C must be a positive number such as 0.5 or 10; "
+                                       f"got {text!r}")
             return
-        self.document.set_C(value)
+        if value == self.document.config.C and not self.document.config.hard_margin:
+            self._clear_refusal()
+            return
+        self._change(C=value, hard_margin=False)
 
     def _change(self, **changes):
         if self._updating:
@@ -151,10 +163,27 @@ class Controls(QWidget):
         try:
             config = self.document.config.with_changes(**changes)
         except InputError as exc:
-            self.window().statusBar().showMessage(str(exc), 8000)
-            self.show_config()
+            field = self.C_field if "C" in changes else None
+            self._refuse(field, str(exc))
+            if field is None:
+                self.show_config(keep_hint=True)
             return
+        self._clear_refusal()
         self.document.set_config(config)
+
+    def _refuse(self, field, reason: str):
+        """Say in place why a typed value was not applied (the field keeps it)."""
+        self.hint.setText(reason)
+        self.hint.show()
+        if field is not None:
+            field.setStyleSheet("border: 1px solid #b00020;")
+            field.setToolTip(reason)
+
+    def _clear_refusal(self):
+        self.hint.hide()
+        self.hint.clear()
+        self.C_field.setStyleSheet("")
+        self.C_field.setToolTip(C_FIELD_TIP)
 
     def _new_class_toggled(self, sign, checked):
         if checked and self.canvas is not None:
@@ -167,8 +196,10 @@ class Controls(QWidget):
         if changes & {POINTS, METADATA}:
             self._show_class_names()
 
-    def show_config(self):
+    def show_config(self, keep_hint=False):
         config = self.document.config
+        if not keep_hint:
+            self._clear_refusal()
         self._updating = True
         try:
             if not self.slider.isSliderDown():

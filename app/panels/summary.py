@@ -41,7 +41,11 @@ class Summary(QWidget):
             label.setStyleSheet("font-family: monospace;" if key != "state" else "")
             label.setWordWrap(key == "state")
             self.values[key] = label
-            form.addRow(title, label)
+            if key == "state":
+                # the whole width, so a long reason (hard margin refused) wraps, never cut
+                form.addRow(label)
+            else:
+                form.addRow(title, label)
         document.changed.connect(self._document_changed)
         self.refresh()
 

@@ -164,7 +164,8 @@ class SweepPanel(QWidget):
         if self.store.sweep is None:
             self.chart.show_sweep(None)
         self._refresh_staleness()
-        self._show_suggestion()
+        if self.store.sweep is None:
+            self._show_suggestion()
 
     def _refresh_staleness(self):
         sweep = self.store.sweep
@@ -186,6 +187,11 @@ class SweepPanel(QWidget):
                                 f"Click the chart to set C.")
         for button in (self.use_best, self.use_largest, self.use_smallest):
             button.setEnabled(sweep.suggestion is not None and not stale)
+        # a suggestion from other points or settings is no suggestion for these
+        if stale:
+            self.suggestion.clear()
+        else:
+            self._show_suggestion()
 
     def _stale_reason(self) -> str:
         from solver.study.crossval import points_fingerprint

@@ -12,7 +12,7 @@ from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QMenu, QMessage
 from app.dialogs.about import show_about
 from app.canvas import geometry
 from app.canvas.canvas import Canvas
-from app.document.document import DIRTY, ERROR, PATH, RESULT, Document
+from app.document.document import DIRTY, ERROR, PATH, POINTS, RESULT, Document
 from app.window.file_actions import FileActions
 from app.document.recovery import RecoveryWriter, pending_recovery
 from app.window.panels import PANELS
@@ -164,7 +164,7 @@ class MainWindow(QMainWindow):
             self._update_title()
         if ERROR in changes:
             self._solve_failed(self.document.last_error)
-        if RESULT in changes:
+        if changes & {RESULT, POINTS}:
             self._result_changed()
 
     def _update_title(self, *_):
@@ -179,13 +179,18 @@ class MainWindow(QMainWindow):
         self.statusBar().showMessage(message)
 
     def _result_changed(self):
-        result = self.document.result
-        if result is not None and not self.document.result_is_stale:
+        result = self.document.current_result()
+        if result is not None:
             self.statusBar().clearMessage()
             self.fit_state.setText(f"{len(result.y)} points \u00b7 {result.config.kernel} \u00b7 "
                                    f"{result.seconds * 1e3:.1f} ms")
         elif self.document.result_is_stale:
             self.fit_state.setText("stale fit")
+        else:
+            # no fit of these very points (yet): never the figures of earlier ones
+            count = len(self.document.X)
+            self.fit_state.setText(f"{count} point{'s' if count != 1 else ''} \u00b7 "
+                                   f"{'solving' if self.document.busy else 'no fit'}")
 
     # -- session ------------------------------------------------------------------------
     def match_axes_to_data(self):
@@ -248,7 +253,7 @@ class MainWindow(QMainWindow):
                            path=Path(original) if original else None, note=experiment.note)
         self.document.undo_stack.resetClean()  # recovered edits are unsaved edits
         self._update_title()
-        self.canvas.fit_view_to_data()
+        self.match_axes_to_data()     # as opening a file does
         return True
 
     def closeEvent(self, event):

@@ -11,7 +11,7 @@ import sys
 from pathlib import Path
 
 from app.canvas.figure import DEFAULT_SIZE, FORMATS, parse_size, save_figure  # no Qt at import
-from solver.errors import InputError
+from solver import InputError
 
 GEOMETRY_FORMAT = ".json"
 
@@ -27,8 +27,8 @@ def add_arguments(parser) -> None:
 
 
 def run(args) -> int:
-    from solver.files.experiment import load_experiment
-    from solver.fit import fit
+    from solver.files import load_experiment
+    from solver import fit
 
     suffix = Path(args.output).suffix.lower()
     if suffix not in FORMATS + (GEOMETRY_FORMAT,):

@@ -15,15 +15,12 @@ from pathlib import Path
 from PySide6.QtCore import QMarginsF, QRectF, QSizeF, QUrl
 from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPainter, QPdfWriter, QTextDocument
 
-from solver.study.compare import compare
-from solver.study.crossval import points_fingerprint
-from solver.errors import InputError
-from solver.study.narrative import summary
-from solver.result import STATUS_TEXT, STATUSES
+from solver.study import compare
+from solver.study import points_fingerprint
+from solver import InputError
+from solver.study import summary
+from solver import CAUTIONS, STATUS_TEXT, STATUSES
 
-CAUTIONS = ("A boundary tuned by eye on training points is not a validated model. "
-            "Validate on held-out data before relying on it. Where the classifier decides "
-            "about people, parts or patients, follow local regulations and licensed practice.")
 LAYOUT_WIDTH = 1000          # logical width the page is laid out at, in pixels
 PNG_SIZE = (1240, 1754)      # A4 portrait at 150 dpi
 PICTURE = (470, 360)
@@ -109,7 +106,7 @@ def build_document(dataset, current, pinned=None, sweep=None, cv_before=None, cv
         parts.append("<p><b>C sweep.</b> " + _e(_sweep_line(sweep)) + "</p>")
         parts.append("<p><img src='image://sweep' width='960'></p>")
     parts.append(f"<p><b>Configuration.</b> {_e(_config_line(current.config))}</p>")
-    parts.append(f"<p><b>Cautions.</b> {_e(CAUTIONS)}</p>")
+    parts.append(f"<p><b>Cautions.</b> {_e(' '.join(CAUTIONS))}</p>")
     doc.setHtml("<body style='font-family: sans-serif; font-size: 11pt'>"
                 + "".join(parts) + "</body>")
     return doc
@@ -168,11 +165,9 @@ def _sweep_line(sweep) -> str:
 
 def _config_line(config) -> str:
     c_text = "hard margin" if config.hard_margin else f"C = {config.C:g}"
-    text = f"{config.kernel} kernel, {c_text}, scaling {config.scaling}"
-    if config.kernel in ("rbf", "polynomial"):
-        text += f", gamma = {config.gamma:g}"
-    if config.kernel == "polynomial":
-        text += f", degree {config.degree}, offset = {config.offset:g}"
+    text = f"{config.kernel_spec.title} kernel, {c_text}, scaling {config.scaling}"
+    for name in config.kernel_spec.parameters:
+        text += f", {name} = {getattr(config, name):g}"
     if (config.weight_positive, config.weight_negative) != (1.0, 1.0):
         text += (f", class weights +1: {config.weight_positive:g}, "
                  f"-1: {config.weight_negative:g}")

@@ -16,6 +16,7 @@ from app.document.document import DIRTY, ERROR, PATH, POINTS, RESULT, Document
 from app.window.file_actions import FileActions
 from app.document.recovery import RecoveryWriter, pending_recovery
 from app.window.panels import PANELS
+from solver import kernels
 
 
 class MainWindow(QMainWindow):
@@ -107,7 +108,7 @@ class MainWindow(QMainWindow):
         file_menu.addSeparator()
         self._action(file_menu, "Export picture\u2026", lambda: files.export_picture(), "Ctrl+E")
         self._action(file_menu, "Export points table\u2026", lambda: files.export_points())
-        self._action(file_menu, "Export model\u2026", lambda: files.export_model())
+        self._action(file_menu, "Export classifier\u2026", lambda: files.export_classifier())
         file_menu.addSeparator()
         self._action(file_menu, "Quit", self.close, QKeySequence.Quit)
 
@@ -214,7 +215,7 @@ class MainWindow(QMainWindow):
         self.equal_axes_action.setChecked(equal)
         self.canvas.set_equal_axes(equal)
         kernel = settings.value("fit/last_kernel")
-        if kernel in ("linear", "polynomial", "rbf") and not self.document.X.size:
+        if kernel in kernels.names() and not self.document.X.size:
             self.document.set_config(self.document.config.with_changes(kernel=kernel))
             self.document.undo_stack.clear()
 
@@ -243,7 +244,7 @@ class MainWindow(QMainWindow):
         return self.recover_from(path, original)
 
     def recover_from(self, path, original="") -> bool:
-        from solver.files.experiment import load_experiment
+        from solver.files import load_experiment
         try:
             experiment = load_experiment(path)
         except Exception:

@@ -42,11 +42,6 @@ def _show_lines(item, lines):
     item.setData(joined[:, 0], joined[:, 1])
 
 
-def _pass_clicks(item):
-    """Let clicks on markers fall through to the view box, which owns editing."""
-    item.mouseClickEvent = lambda ev: ev.ignore()
-
-
 class SceneItems:
     """Every item of one plot: shading, boundary, band, w, slack, points, rings."""
 
@@ -88,19 +83,16 @@ class SceneItems:
                                       pen=pg.mkPen("#ffffff", width=0.8),
                                       brush=pg.mkBrush(class_colour(sign)), name=None)
             item.setZValue(5)
-            _pass_clicks(item)  # the view box edits points
             plot.addItem(item)
             self.points[sign] = item
         self.rings = pg.ScatterPlotItem(symbol="o", size=17, brush=None,
                                         pen=pg.mkPen(colours["support_ring"], width=1.6),
                                         name="support vector")
         self.rings.setZValue(4)
-        _pass_clicks(self.rings)
         plot.addItem(self.rings, ignoreBounds=True)
         self.selected = pg.ScatterPlotItem(symbol="o", size=23, brush=None,
                                            pen=pg.mkPen(colours["selection"], width=3.2))
         self.selected.setZValue(6)
-        _pass_clicks(self.selected)
         plot.addItem(self.selected, ignoreBounds=True)
         self.legend = None
         if legend:
@@ -129,14 +121,20 @@ class SceneItems:
             self.legend.getLabel(self.legend_class[sign]).setText(f"{text}  ({code})")
 
     # -- points ------------------------------------------------------------
+    # every marker carries its point's index as item data, so pyqtgraph's own
+    # picking (pointsAt, sigClicked) answers "which point": see marker_items
     def set_points(self, X: np.ndarray, y: np.ndarray):
         for sign, item in self.points.items():
-            chosen = X[y == sign]
-            item.setData(x=chosen[:, 0], y=chosen[:, 1])
+            rows = np.flatnonzero(y == sign)
+            item.setData(x=X[rows, 0], y=X[rows, 1], data=rows)
 
     def set_selection(self, X: np.ndarray, indices):
-        chosen = X[sorted(indices)] if len(indices) else np.zeros((0, 2))
-        self.selected.setData(x=chosen[:, 0], y=chosen[:, 1])
+        rows = np.array(sorted(indices), dtype=int)
+        self.selected.setData(x=X[rows, 0], y=X[rows, 1], data=rows)
+
+    def marker_items(self):
+        """The items whose markers stand for points, topmost first."""
+        return (self.selected, self.points[1], self.points[-1], self.rings)
 
     # -- the fit -----------------------------------------------------------
     def set_result(self, result, X: np.ndarray, y: np.ndarray, rect):
@@ -153,7 +151,7 @@ class SceneItems:
         shape = self._draw_field(result, rect)
         if matches:
             support = result.X[result.support]
-            self.rings.setData(x=support[:, 0], y=support[:, 1])
+            self.rings.setData(x=support[:, 0], y=support[:, 1], data=result.support)
             self._draw_slack(shape)
         else:
             self.rings.setData([], [])

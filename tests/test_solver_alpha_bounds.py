@@ -50,3 +50,26 @@ def test_support_vectors_are_exactly_the_points_with_nonzero_alpha(name):
     X, y = _iris_overlapping()
     result = fit(X, y, CONFIGS[name])
     assert np.array_equal(result.support, np.flatnonzero(result.alpha != 0.0))
+
+
+def test_fit_json_and_the_points_export_write_the_same_exact_alphas(tmp_path, capsys):
+    import csv
+    import json
+
+    from cli.main import main
+    X, y = _iris_overlapping()
+    table = tmp_path / "iris.csv"
+    table.write_text("petal length,petal width,class\n"
+                     + "".join(f"{a},{b},{'virginica' if s > 0 else 'versicolor'}\n"
+                               for (a, b), s in zip(X, y)))
+    experiment = tmp_path / "iris.experiment.json"
+    assert main(["fit", str(table), "--positive", "virginica", "--json",
+                 "--save", str(experiment)]) == 0
+    figures = json.loads(capsys.readouterr().out)
+    alpha, status = np.array(figures["alpha"]), np.array(figures["status"])
+    assert np.all(alpha[status == OUTSIDE] == 0.0)
+    points = tmp_path / "points.csv"
+    assert main(["export", str(experiment), "--points", str(points)]) == 0
+    rows = list(csv.DictReader(points.open()))
+    exported = np.array([float(row["alpha"]) for row in rows])
+    assert np.array_equal(exported, alpha)

@@ -201,6 +201,8 @@ class Controls(QWidget):
             field.setToolTip(reason)
 
     def _clear_refusal(self):
+        if self.hint.isHidden():
+            return              # nothing shown: no style change (each one re-polishes)
         self.hint.hide()
         self.hint.clear()
         self.C_field.setStyleSheet("")

@@ -115,11 +115,18 @@ def test_linear_slack_segment_is_slack_over_norm_w_along_w():
         assert abs(cross) < 1e-9 * np.linalg.norm(step) * result.weight_norm
 
 
-def test_w_runs_from_the_boundary_to_the_plus_one_edge_and_is_null_for_kernels():
-    data, result = _sample(SAMPLES[0])
+@pytest.mark.parametrize("name", SAMPLES)
+def test_w_runs_from_the_boundary_to_the_plus_one_edge_in_the_datas_units(name):
+    data, result = _sample(name, kernel="linear")
     w = figure_geometry(result, data.feature_names)["w"]
+    # derivation: from f = 0 along w by 1/|w| (w in the data's units, also under scaling)
     f = result.decision_function(np.array([w["from"], w["to"]]))
     assert f == pytest.approx([0.0, 1.0], abs=1e-9)
+    step = np.subtract(w["to"], w["from"])
+    assert step == pytest.approx(result.w / result.weight_norm ** 2, rel=1e-9)
+
+
+def test_w_is_null_for_kernel_fits():
     data, result = _sample(SAMPLES[0], **KERNEL_FITS["rbf"])
     assert figure_geometry(result, data.feature_names)["w"] is None
 
@@ -143,3 +150,11 @@ def test_render_to_json_writes_exactly_the_figure_object(tmp_path):
     assert written["axes"] == {"x": data.feature_names[0], "y": data.feature_names[1]}
     assert set(written["band"]) == {"positive", "negative"}
     assert set(written["w"]) == {"from", "to"}
+
+
+def test_render_into_a_missing_folder_says_so_in_one_line(tmp_path, capsys):
+    from cli.main import main
+    target = tmp_path / "no such folder" / "figure.json"
+    assert main(["render", str(samples() / SAMPLES[0]), "-o", str(target)]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and "figure.json" in err and "Traceback" not in err

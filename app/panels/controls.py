@@ -169,9 +169,11 @@ class Controls(QWidget):
         text = self.C_field.text().strip()
         try:
             value = float(text)
-        except ValueError:
-            self._refuse(self.C_field, f"C must be a positive number such as 0.5 or 10; "
-                                       f"got {text!r}")
+            self.document.config.with_changes(C=value, hard_margin=False)
+        except (ValueError, InputError):
+            # the window's own words: here C = infinity is the hard-margin box
+            self._refuse(self.C_field, f"C must be a positive number such as 0.5 or 10 "
+                                       f"(for C = \u221e tick hard margin); got {text!r}")
             return
         if value == self.document.config.C and not self.document.config.hard_margin:
             self._clear_refusal()

@@ -154,3 +154,12 @@ def test_an_import_undoes_and_redoes_with_its_names_units_note_and_path(document
     assert document.note is None and document.path is None
     document.undo_stack.undo()
     assert document.note == "old note" and document.path == "old.experiment.json"
+
+
+def test_an_undo_and_its_redo_each_emit_one_notice(document):
+    document.move_points([0], [[5.0, 5.0]])
+    notices = _record(document)
+    document.undo()
+    document.redo()
+    assert len(notices) == 2
+    assert all({POINTS, DIRTY} <= notice for notice in notices)

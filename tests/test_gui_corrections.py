@@ -161,3 +161,16 @@ def test_the_hard_margin_refusal_is_shown_whole_in_the_summary(window, qtbot):
     # every wrapped line has room: the label is as tall as its text needs at its width
     assert state.height() >= state.heightForWidth(state.width())
     assert state.geometry().bottom() <= window.summary.height()
+
+
+def test_the_undo_action_undoes_through_the_document_with_one_notice(window, qtbot):
+    load_points(window, qtbot, gauge_points())
+    window.document.add_point(0.0, 2.5, 1)
+    settle(window, qtbot)
+    notices = []
+    window.document.changed.connect(notices.append)
+    window.undo_action.trigger()
+    assert len(window.document.X) == 24
+    assert len(notices) == 1
+    window.redo_action.trigger()
+    assert len(window.document.X) == 25

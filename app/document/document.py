@@ -194,6 +194,14 @@ class Document(QObject):
             self.undo_stack.setClean()
 
     # -- undoable changes --------------------------------------------------
+    def undo(self):
+        with self.batch():
+            self.undo_stack.undo()
+
+    def redo(self):
+        with self.batch():
+            self.undo_stack.redo()
+
     def _push(self, command):
         with self.batch():      # the edit and the clean-state change: one notice
             self.undo_stack.push(command)

@@ -117,6 +117,11 @@ class MainWindow(QMainWindow):
         undo.setShortcut(QKeySequence.Undo)
         redo = doc.undo_stack.createRedoAction(self, "Redo")
         redo.setShortcut(QKeySequence.Redo)
+        # the stack keeps their text and state; a trigger goes through the document,
+        # so an undo and its clean-state change reach the views as one notice
+        for action, step in ((undo, doc.undo), (redo, doc.redo)):
+            action.triggered.disconnect()
+            action.triggered.connect(step)
         edit.addActions([undo, redo])
         self.undo_action, self.redo_action = undo, redo
         edit.addSeparator()

@@ -1,7 +1,6 @@
 """The panel list is declared once and imported for real: no panel silently goes missing."""
 
 import pytest
-from PySide6.QtCore import Qt
 
 import app.window.main_window as main_window
 from app.window.panels import PANELS, Panel
@@ -9,11 +8,17 @@ from app.window.panels import PANELS, Panel
 from test_gui_fixtures import temporary_settings, window  # noqa: F401
 
 
-def test_every_declared_panel_is_docked_under_its_title(window):
-    assert [spec.title for spec in PANELS] == list(window.docks)
+def test_every_declared_panel_is_in_its_place_under_its_title(window):
+    tabs = window.workspace.studies
+    tab_titles = [tabs.tabText(i) for i in range(tabs.count())]
     for spec in PANELS:
-        assert window.docks[spec.title].widget() is not None
-        assert isinstance(getattr(window, spec.name), spec.widget)
+        panel = getattr(window, spec.name)
+        assert isinstance(panel, spec.widget) and window.panels[spec.name] is panel
+        if spec.place == "study":
+            assert tab_titles.count(spec.title) == 1
+        else:
+            assert spec.title in window.docks
+    assert [s.title for s in PANELS if s.place == "study"] == tab_titles
 
 
 def test_a_panel_that_fails_to_build_stops_the_window_loudly(qtbot, temporary_settings,
@@ -22,7 +27,7 @@ def test_a_panel_that_fails_to_build_stops_the_window_loudly(qtbot, temporary_se
         def __init__(self, document):
             raise RuntimeError("broken panel")
     monkeypatch.setattr(main_window, "PANELS",
-                        PANELS + (Panel("broken", "Broken", Broken, Qt.BottomDockWidgetArea),))
+                        PANELS + (Panel("broken", "Broken", Broken, "study"),))
     from app.document.document import Document
     document = Document(solve_in_background=False)   # no solver thread left behind
     with pytest.raises(RuntimeError, match="broken panel"):
@@ -31,5 +36,7 @@ def test_a_panel_that_fails_to_build_stops_the_window_loudly(qtbot, temporary_se
 
 def test_the_window_module_hides_no_import_error():
     from pathlib import Path
-    for module in (main_window, __import__("app.window.panels", fromlist=["x"])):
+    import app.window.panels
+    import app.window.workspace
+    for module in (main_window, app.window.panels, app.window.workspace):
         assert "except ImportError" not in Path(module.__file__).read_text()

@@ -12,6 +12,7 @@ import pyqtgraph as pg
 from PySide6.QtCore import QRectF, Qt
 
 from app.canvas import geometry
+from app.canvas.scale_note import ScaleNote
 from app.canvas.palette import class_colour, class_symbol, palette
 
 KERNEL_GRID = geometry.KERNEL_GRID   # contour and shading lattice for kernel fits
@@ -61,8 +62,8 @@ class SceneItems:
             return item
 
         finite = dict(connect="finite")     # polylines with NaN breaks
-        self.ghost_boundary = line(colours["ghost"], 2, Qt.DashLine, -8, name="pinned fit",
-                                   **finite)
+        self.ghost_boundary = line(colours["ghost"], 2, Qt.DashLine, -8,
+                                   name="pinned fit (ghost)", **finite)
         self.ghost_band = line(colours["ghost"], 1, Qt.DotLine, -8, **finite)
         self.band = line(colours["band"], 1.4, Qt.DashLine, -4, name="margin  f = \u00b11",
                          **finite)
@@ -76,6 +77,7 @@ class SceneItems:
         self.arrow.setZValue(-1)
         plot.addItem(self.arrow, ignoreBounds=True)
         self.arrow.hide()
+        self.scale_note = ScaleNote(plot, colours["weight_vector"])
 
         self.points = {}
         for sign in (1, -1):
@@ -146,6 +148,8 @@ class SceneItems:
             self.rings.setData([], [])
             self.shade.clear()
             self.arrow.hide()
+            self._arrow_tip = None
+            self.scale_note.update(None, None)
             return
         matches = len(result.y) == len(X) and np.array_equal(result.X, X)
         shape = self._draw_field(result, rect)
@@ -174,6 +178,7 @@ class SceneItems:
         self.legend.addItem(self.slack, self.slack.name())
 
     def set_pinned(self, pinned, rect):
+        self._legend_lists_ghost(pinned is not None)
         if pinned is None:
             self.ghost_boundary.setData([], [])
             self.ghost_band.setData([], [])
@@ -182,13 +187,23 @@ class SceneItems:
         _show_lines(self.ghost_boundary, shape.boundary)
         _show_lines(self.ghost_band, shape.band_positive + shape.band_negative)
 
+    def _legend_lists_ghost(self, show: bool):
+        """The pinned fit's dashed ghost has a legend entry while there is one."""
+        if self.legend is None:
+            return
+        listed = any(sample.item is self.ghost_boundary for sample, _ in self.legend.items)
+        if show and not listed:
+            self.legend.addItem(self.ghost_boundary, self.ghost_boundary.name())
+        elif listed and not show:
+            self.legend.removeItem(self.ghost_boundary)
+
     def refresh_view(self, rect):
         """Redo what depends on the visible rectangle (after pan or zoom)."""
         if self.result is not None:
             self._draw_field(self.result, rect)
             self._place_arrow()
 
-    def _draw_field(self, result, rect, with_slack=False):
+    def _draw_field(self, result, rect):
         x0, x1, y0, y1 = rect
         size = LINEAR_GRID if result.w is not None else KERNEL_GRID
         xs, ys, values = geometry.lattice_values(result.decision_function, rect, size)
@@ -215,6 +230,7 @@ class SceneItems:
         if ends is None:
             self.weight.setData([], [])
             self.arrow.hide()
+            self.scale_note.update(None, None)
             return
         foot, tip = ends
         self.weight.setData([foot[0], tip[0]], [foot[1], tip[1]])
@@ -234,3 +250,4 @@ class SceneItems:
         self.arrow.setStyle(angle=angle)
         self.arrow.setPos(tip[0], tip[1])
         self.arrow.show()
+        self.scale_note.update(view, tip)

@@ -6,16 +6,20 @@ from pathlib import Path
 
 from PySide6.QtCore import QSettings, Qt
 from PySide6.QtGui import QAction, QKeySequence
-from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QMenu, QMessageBox,
-                               QProgressBar, QScrollArea)
+from PySide6.QtWidgets import QMainWindow, QMenu, QMessageBox
 
 from app.dialogs.about import show_about
+from app.dialogs.help_pages import READING, shortcuts_html, show_page
 from app.canvas import geometry
 from app.canvas.canvas import Canvas
-from app.document.document import DIRTY, ERROR, PATH, POINTS, RESULT, Document
+from app.document.document import DIRTY, PATH, Document
 from app.window.file_actions import FileActions
+from app.document.provenance import provenance
 from app.document.recovery import RecoveryWriter, pending_recovery
 from app.window.panels import PANELS
+from app.window.status import StatusReadouts
+from app.window.tooltips import apply_tooltips
+from app.window.workspace import Workspace
 from solver import kernels
 
 
@@ -26,62 +30,33 @@ class MainWindow(QMainWindow):
         self.last_import_dialog = None
         self.setObjectName("slackline_main_window")
         self.document = document or Document(self)
+        provenance(self.document)     # remembers the points as imported, before any edit
         self.canvas = Canvas(self.document)
         self.setCentralWidget(self.canvas)
-        self.docks = {}
+        self.workspace = Workspace(self)
+        self.docks = self.workspace.docks
         self.panels = {}
         for spec in PANELS:      # declared once, in app/window/panels.py
             panel = spec.build(self.document, self.canvas)
             self.panels[spec.name] = panel
-            setattr(self, spec.name, panel)
-            dock = self._dock(spec.title, panel, spec.area, scroll=spec.scroll)
-            dock.setVisible(spec.shown)
+            setattr(self, spec.name, panel)       # window.controls, window.summary, ...
+            self.workspace.place(spec, panel)
         self.files = FileActions(self, self.document, self.canvas)
         self.recovery = RecoveryWriter(self.document, self)
         self._build_status_bar()
         self._build_menus()
+        apply_tooltips(self)
         self.setAcceptDrops(True)
         self.document.changed.connect(self._document_changed)
-        self.document.busy_changed.connect(self._busy)
         self.resize(1280, 800)
-        self.resizeDocks([self.docks["Fit settings"], self.docks["Point"]], [300, 330],
-                         Qt.Horizontal)
-        self.resizeDocks([self.docks["Fit settings"], self.docks["Summary"]], [380, 300],
-                         Qt.Vertical)
-        self.resizeDocks([self.docks["Point"], self.docks["Points"]], [300, 420], Qt.Vertical)
+        self.workspace.finish(self.inspector)
         self._restore_settings()
         self._update_title()
 
     # -- layout ------------------------------------------------------------
-    def _dock(self, title, widget, area, scroll=False):
-        dock = QDockWidget(title, self)
-        dock.setObjectName(f"dock_{title.lower().replace(' ', '_')}")
-        if scroll:
-            holder = QScrollArea()
-            holder.setWidget(widget)
-            holder.setWidgetResizable(True)
-            holder.setFrameShape(QScrollArea.NoFrame)
-            widget = holder
-        dock.setWidget(widget)
-        self.addDockWidget(area, dock)
-        self.docks[title] = dock
-        return dock
-
     def _build_status_bar(self):
-        self.busy_indicator = QProgressBar()
-        self.busy_indicator.setRange(0, 0)
-        self.busy_indicator.setMaximumSize(70, 12)
-        self.busy_indicator.setTextVisible(False)
-        self.busy_indicator.setToolTip("solving\u2026")
-        # keep its room when hidden: a status bar that changes height re-lays
-        # out the window and repaints the whole canvas during every solve
-        policy = self.busy_indicator.sizePolicy()
-        policy.setRetainSizeWhenHidden(True)
-        self.busy_indicator.setSizePolicy(policy)
-        self.busy_indicator.hide()
-        self.fit_state = QLabel()
-        self.statusBar().addPermanentWidget(self.fit_state)
-        self.statusBar().addPermanentWidget(self.busy_indicator)
+        self.status = StatusReadouts(self, self.document, self.canvas)
+        self.fit_state, self.busy_indicator = self.status.fit_state, self.status.busy_indicator
 
     def _action(self, menu, text, slot, shortcut=None, name=None):
         action = QAction(text, self)
@@ -139,7 +114,7 @@ class MainWindow(QMainWindow):
         self._action(relabel, "Make \u22121", lambda: doc.relabel(doc.selection, -1),
                      name="relabel_negative")
         edit.addSeparator()
-        self._action(edit, "Pin current fit", doc.pin_current, "Ctrl+P")
+        self._action(edit, "Pin current fit", self.status.pin, "Ctrl+P")
         self._action(edit, "Clear pin", doc.clear_pin)
 
         view = bar.addMenu("&View")
@@ -155,7 +130,17 @@ class MainWindow(QMainWindow):
         for dock in self.docks.values():
             view.addAction(dock.toggleViewAction())
         help_menu = bar.addMenu("&Help")
+        self._action(help_menu, "Keyboard shortcuts", self.show_shortcuts, "F1")
+        self._action(help_menu, "Reading the canvas", self.show_reading)
+        help_menu.addSeparator()
         self._action(help_menu, "About Slackline", lambda: show_about(self))
+
+    def show_shortcuts(self):
+        self.help_page = show_page(self, "Keyboard shortcuts", shortcuts_html(self),
+                                   "help_shortcuts")
+
+    def show_reading(self):
+        self.help_page = show_page(self, "Reading the canvas", READING, "help_reading")
 
     def _fill_recent(self):
         self.recent_menu.clear()
@@ -168,35 +153,11 @@ class MainWindow(QMainWindow):
     def _document_changed(self, changes):
         if changes & {DIRTY, PATH}:
             self._update_title()
-        if ERROR in changes:
-            self._solve_failed(self.document.last_error)
-        if changes & {RESULT, POINTS}:
-            self._result_changed()
 
     def _update_title(self, *_):
         name = Path(self.document.path).name if self.document.path else "untitled"
         self.setWindowTitle(f"{name}[*] \u2014 Slackline")
         self.setWindowModified(self.document.is_dirty)
-
-    def _busy(self, busy: bool):
-        self.busy_indicator.setVisible(busy)
-
-    def _solve_failed(self, message: str):
-        self.statusBar().showMessage(message)
-
-    def _result_changed(self):
-        result = self.document.current_result()
-        if result is not None:
-            self.statusBar().clearMessage()
-            self.fit_state.setText(f"{len(result.y)} points \u00b7 {result.config.kernel} \u00b7 "
-                                   f"{result.seconds * 1e3:.1f} ms")
-        elif self.document.result_is_stale:
-            self.fit_state.setText("stale fit")
-        else:
-            # no fit of these very points (yet): never the figures of earlier ones
-            count = len(self.document.X)
-            self.fit_state.setText(f"{count} point{'s' if count != 1 else ''} \u00b7 "
-                                   f"{'solving' if self.document.busy else 'no fit'}")
 
     # -- session ------------------------------------------------------------------------
     def match_axes_to_data(self):

@@ -183,6 +183,8 @@ class MainWindow(QMainWindow):
         state = settings.value("window/state")
         if geometry is not None:
             self.restoreGeometry(geometry)
+        else:
+            self.workspace.fit_to_screen()
         if state is not None:
             self.restoreState(state)
         equal = settings.value("view/equal_axes", True)

@@ -37,9 +37,12 @@ class Inspector(QWidget):
         self.document = document
         self.values = {}
         form = QFormLayout(self)
+        # a narrow column: long values wrap under their title instead of being cut off
+        form.setRowWrapPolicy(QFormLayout.WrapLongRows)
         for key in FIELDS:
             label = QLabel("\u2014")
             label.setObjectName(f"inspector_{key}")
+            label.setWordWrap(True)
             self.values[key] = label
             form.addRow(TITLES[key], label)
         self.reading = QLabel()

@@ -174,8 +174,12 @@ class MainWindow(QMainWindow):
         state = settings.value("window/state")
         if geometry is not None:
             self.restoreGeometry(geometry)
+        else:
+            self.workspace.fit_to_screen()
         if state is not None:
             self.restoreState(state)
+        else:
+            self.workspace.starting_sizes_when_shown()
         equal = settings.value("view/equal_axes", True)
         equal = equal if isinstance(equal, bool) else str(equal).lower() == "true"
         self.equal_axes_action.setChecked(equal)

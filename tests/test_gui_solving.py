@@ -3,6 +3,7 @@
 import time
 
 import numpy as np
+import pytest
 from PySide6.QtCore import QElapsedTimer, QTimer
 
 import app.document.worker
@@ -11,6 +12,14 @@ from solver.config import FitConfig
 from solver.files.dataset import Dataset
 
 from test_gui_fixtures import gauge_points, load_points, settle, temporary_settings, window  # noqa: F401
+
+
+@pytest.fixture(autouse=True)
+def no_exact_path(monkeypatch):
+    """These tests are about solves in the worker; with the exact C path ready, a C
+    change would be answered from it without one (tests/test_gui_path.py)."""
+    import app.document.path_keeper
+    monkeypatch.setattr(app.document.path_keeper.PathKeeper, "request", lambda *a: None)
 
 
 def test_a_slow_solve_does_not_block_the_event_loop(window, qtbot, monkeypatch):

@@ -29,6 +29,7 @@ from PySide6.QtGui import QUndoStack
 from solver import FitConfig
 from solver.files import Dataset
 
+from app.document.path_keeper import PathKeeper
 from app.document.worker import SolveController
 
 DEFAULT_MAPPING = {"+1": 1, "-1": -1}
@@ -80,6 +81,8 @@ class Document(QObject):
         self._solver.solved.connect(self._on_solved)
         self._solver.failed.connect(self._on_failed)
         self._solver.busy_changed.connect(self.busy_changed)
+        # the exact C path, kept in the background: C changes evaluate it, no solve
+        self.paths = PathKeeper(self, enabled=solve_in_background)
 
     def _clean_changed(self, clean: bool):
         self._notify(DIRTY)
@@ -325,6 +328,12 @@ class Document(QObject):
 
     # -- solving -------------------------------------------------------------
     def request_solve(self):
+        self.paths.request(self._X, self._y, self._config)
+        from_path = self.paths.evaluate(self._X, self._y, self._config)
+        if from_path is not None:       # only C moved and the path is ready: no solve
+            self._solver.supersede()
+            self._on_solved(from_path)
+            return
         self._solver.request(self._X, self._y, self._config, self.result)
 
     def wait_for_solve(self, timeout_ms: int = 30000) -> bool:
@@ -346,6 +355,7 @@ class Document(QObject):
         self._notify(RESULT, ERROR)
 
     def shutdown(self):
+        self.paths.shutdown()
         self._solver.shutdown()
 
 

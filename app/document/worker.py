@@ -115,6 +115,17 @@ class SolveController(QObject):
         self._wake.emit()
         return request.request_id
 
+    def supersede(self):
+        """The latest request was answered another way (the exact C path): whatever is
+        pending or running now answers stale and is dropped."""
+        with self._lock:
+            self._pending = None
+        was_busy = self.busy
+        self._latest_id += 1
+        self._answered_id = self._latest_id
+        if was_busy:
+            self.busy_changed.emit(False)
+
     def _take(self):
         with self._lock:
             request, self._pending = self._pending, None

@@ -7,7 +7,7 @@ import math
 
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (QButtonGroup, QCheckBox, QComboBox, QDoubleSpinBox, QFormLayout,
-                               QHBoxLayout, QLabel, QLineEdit, QRadioButton, QSlider, QSpinBox,
+                               QHBoxLayout, QLabel, QLineEdit, QRadioButton, QSpinBox,
                                QVBoxLayout, QWidget, QGroupBox)
 
 from solver import kernels, scaling
@@ -15,6 +15,7 @@ from solver import InputError
 from solver import PARAMETERS
 
 from app.document.document import CONFIG, METADATA, POINTS
+from app.panels.path_ticks import TickedSlider
 
 LOG_C_MIN, LOG_C_MAX = -3.0, 4.0     # the slider spans C = 1e-3 .. 1e4
 SLIDER_STEPS = 700                   # 100 steps per decade
@@ -62,7 +63,7 @@ class Controls(QWidget):
         self._updating = False
         self._gesture = None
 
-        self.slider = QSlider(Qt.Horizontal)
+        self.slider = TickedSlider(Qt.Horizontal)
         self.slider.setRange(0, SLIDER_STEPS)
         self.slider.setToolTip("C on a logarithmic scale, 0.001 to 10000")
         # no validator: a refused value stays in the field and the hint says why
@@ -132,6 +133,9 @@ class Controls(QWidget):
         layout.addWidget(adding)
         layout.addStretch(1)
 
+        document.paths.ready.connect(
+            lambda path: self.slider.set_ticks(C_to_slider(C) for C in path.breakpoints))
+        document.paths.cleared.connect(lambda: self.slider.set_ticks(()))
         self.slider.sliderPressed.connect(self._start_gesture)
         self.slider.sliderReleased.connect(self._end_gesture)
         self.slider.valueChanged.connect(self._slider_moved)

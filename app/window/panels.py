@@ -15,6 +15,7 @@ from app.panels.compare import ComparePanel
 from app.panels.controls import Controls
 from app.panels.inspector import Inspector
 from app.panels.note import NoteEditor
+from app.panels.path import PathPanel
 from app.panels.points_table import PointsTable
 from app.panels.summary import Summary
 from app.panels.sweep import SweepPanel
@@ -42,6 +43,8 @@ PANELS = (
           "every point with its figures; double-click a coordinate or label to edit it"),
     Panel("sweep", "C sweep", SweepPanel, "study",
           "cross-validated error and more against C; click the chart to set C"),
+    Panel("c_path", "C path", PathPanel, "study",
+          "the exact solution at every C: breakpoints, events and curves; click to set C"),
     Panel("compare", "Compare", ComparePanel, "study",
           "the current fit against the pinned one, in numbers and words"),
     Panel("note_editor", "Note", NoteEditor, "study",

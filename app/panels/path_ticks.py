@@ -1,0 +1,46 @@
+"""The C slider with a tick at every breakpoint of the exact C path."""
+
+from __future__ import annotations
+
+from PySide6.QtCore import QPointF
+from PySide6.QtGui import QPainter, QPalette, QPen
+from PySide6.QtWidgets import QSlider, QStyle, QStyleOptionSlider
+
+
+class TickedSlider(QSlider):
+    """A QSlider that also draws short ticks at given slider positions."""
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self._ticks: tuple[int, ...] = ()
+
+    @property
+    def ticks(self) -> tuple[int, ...]:
+        return self._ticks
+
+    def set_ticks(self, positions) -> None:
+        self._ticks = tuple(sorted(set(int(p) for p in positions)))
+        self.setToolTip(self.toolTip().split("\n")[0] + (
+            f"\nticks: the {len(self._ticks)} places where the exact C path has a breakpoint"
+            if self._ticks else ""))
+        self.update()
+
+    def paintEvent(self, event):
+        super().paintEvent(event)
+        if not self._ticks:
+            return
+        option = QStyleOptionSlider()
+        self.initStyleOption(option)
+        style = self.style()
+        groove = style.subControlRect(QStyle.CC_Slider, option, QStyle.SC_SliderGroove, self)
+        handle = style.subControlRect(QStyle.CC_Slider, option, QStyle.SC_SliderHandle, self)
+        span = groove.width() - handle.width()
+        left = groove.x() + handle.width() / 2
+        painter = QPainter(self)
+        painter.setPen(QPen(self.palette().color(QPalette.WindowText), 1))
+        bottom = self.height() - 1
+        for position in self._ticks:
+            x = left + QStyle.sliderPositionFromValue(self.minimum(), self.maximum(),
+                                                      position, span)
+            painter.drawLine(QPointF(x, bottom - 3), QPointF(x, bottom))
+        painter.end()

@@ -22,7 +22,7 @@ import time
 from dataclasses import dataclass, field
 
 import numpy as np
-from threadpoolctl import threadpool_limits
+from threadpoolctl import ThreadpoolController
 
 from solver import scaling
 from solver.config import FitConfig
@@ -36,6 +36,17 @@ CHECK_EVERY = 16                         # breakpoints between KKT checks on all
 KKT_LIMIT = 1e-7                         # a larger violation re-anchors
 _CHECKPOINT = 64                         # segments between stored partitions
 _CODE_STATUS = {OUT: "outside", EDGE: "on_margin"}
+_threads = []                            # one ThreadpoolController, made on first use
+
+
+def one_blas_thread():
+    """A context with BLAS on one thread: the path's products are small and many, and
+    contending threads made a 1,000 x 1,000 product 12x slower on a loaded two-core
+    machine.  The controller is made once (finding the libraries costs ms; a limit
+    then costs microseconds)."""
+    if not _threads:
+        _threads.append(ThreadpoolController())
+    return _threads[0].limit(limits=1, user_api="blas")
 
 
 @dataclass(frozen=True)
@@ -134,8 +145,9 @@ class CPath:
     def evaluate(self, C: float):
         """The FitResult at C, from the path (no QP); solver_status is 'path'."""
         started = time.perf_counter()
-        alpha, b = self.alpha_b(C)
-        return result_from_alpha(self, C, alpha, b, started)
+        with one_blas_thread():
+            alpha, b = self.alpha_b(C)
+            return result_from_alpha(self, C, alpha, b, started)
 
     def events_near(self, C: float, count: int = 5) -> list:
         """The ``count`` events nearest to C in log C."""
@@ -185,10 +197,7 @@ def compute_path(X, y, config: FitConfig | None = None, c_from: float = DEFAULT_
         gram = KernelGram(kernel.gram(Xs, Xs, config), y)
     weights = np.where(y > 0, config.weight_positive, config.weight_negative).astype(float)
     walk = _Walk(X, y, config, Tracer(gram, weights))
-    # thousands of small products: BLAS threads only contend (12x slower measured
-    # on a loaded two-core machine for a 1,000 x 1,000 product)
-    with threadpool_limits(limits=1, user_api="blas"), \
-            np.errstate(divide="ignore", invalid="ignore"):
+    with one_blas_thread(), np.errstate(divide="ignore", invalid="ignore"):
         try:
             walk.run(float(c_from), float(c_to), progress, cancel)
         except PathTrouble as trouble:

@@ -35,10 +35,12 @@ def intercept(G: np.ndarray, y: np.ndarray, upper: np.ndarray, alpha: np.ndarray
     passed_neg = np.cumsum(np.where(weights < 0, -weights, 0.0))
     passed_pos = np.cumsum(np.where(weights > 0, weights, 0.0))
     slope_right = passed_neg - (positive_total - passed_pos)
-    k = int(np.searchsorted(slope_right, 0.0, side="left"))   # first kink with slope >= 0
+    # sums of C_i carry rounding: a slope within eps of zero is zero
+    eps = 1e-12 * float(upper.sum())
+    k = int(np.searchsorted(slope_right, -eps, side="left"))  # first kink with slope >= 0
     if k >= len(kinks):
         return float(kinks[-1])
-    if slope_right[k] > 0 or k + 1 >= len(kinks):
+    if slope_right[k] > eps or k + 1 >= len(kinks):
         return float(kinks[k])
     # slope exactly zero between kinks k and k+1: every b there is optimal
     return float(0.5 * (kinks[k] + kinks[k + 1]))

@@ -75,8 +75,9 @@ class KernelColumns:
             if len(free) < len(missing):
                 # evict the least recently used columns not wanted now
                 self.stamp[self.slot[idx[self.slot[idx] >= 0]]] = self.clock
-                order = np.argsort(self.stamp, kind="stable")
-                victims = order[self.stamp[order] < self.clock][:len(missing) - len(free)]
+                used = np.flatnonzero((self.owner >= 0) & (self.stamp < self.clock))
+                victims = used[np.argsort(self.stamp[used], kind="stable")]
+                victims = victims[:len(missing) - len(free)]
                 self.slot[self.owner[victims]] = -1
                 self.owner[victims] = -1
                 free = np.concatenate([free, victims])

@@ -17,7 +17,7 @@ from solver import SlacklineError
 COMMANDS = {
     "fit": ("cli.fit", "fit a support vector machine to a CSV/TSV file"),
     "check": ("cli.check", "re-run an experiment file and compare its numbers"),
-    "export": ("cli.export", "write an experiment's points table or model card"),
+    "export": ("cli.export", "write an experiment's points table or classifier file"),
     "sweep": ("cli.sweep", "fit across a range of C with cross-validation"),
     "render": ("cli.render", "draw an experiment's canvas to a PNG/SVG file, no window"),
 }
@@ -32,10 +32,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name, (module_name, help_text) in COMMANDS.items():
         command_parser = sub.add_parser(name, help=help_text, description=help_text)
-        try:
-            module = importlib.import_module(module_name)
-        except ImportError:
-            continue  # a command still under construction
+        module = importlib.import_module(module_name)   # a broken command fails loudly
         module.add_arguments(command_parser)
         command_parser.set_defaults(run=module.run)
     return parser
@@ -54,7 +51,8 @@ def main(argv=None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     if getattr(args, "run", None) is None:
-        parser.error(f"the command {args.command!r} is not available in this build")
+        parser.print_help(sys.stderr)
+        return 2
     try:
         return int(args.run(args) or 0)
     except SlacklineError as exc:

@@ -81,11 +81,11 @@ def _solve_face(Q, linear, y, cap, rhs, at_zero, at_upper):
     if not m:
         return None, 0.0
     system = np.empty((m + 1, m + 1))
-    system[:m, :m] = Q[np.ix_(free, free)]
+    system[:m, :m] = Q.take(free, axis=0).take(free, axis=1)
     system[:m, m] = system[m, :m] = y[free]
     system[m, m] = 0.0
     right = np.empty(m + 1)
-    right[:m] = -(linear[free] + Q[np.ix_(free, held)] @ cap[held])
+    right[:m] = -(linear[free] + Q.take(free, axis=0).take(held, axis=1) @ cap[held])
     right[m] = rhs - float(y[held] @ cap[held])
     # cvxopt's LAPACK: numpy's threaded solver was ten times slower on a busy 2-core machine
     matrix, solution = cvxopt.matrix(system), cvxopt.matrix(right)

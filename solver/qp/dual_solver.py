@@ -34,6 +34,7 @@ from threadpoolctl import ThreadpoolController
 
 from solver.qp import dual_certify as certify
 from solver.qp.dual_qp import DualSolution, check_conflicting_duplicates, solve_qp
+from solver.qp.active_set import active_set
 from solver.qp.dual_polish import polish
 from solver.qp.dual_start import alpha_from_margins, feasible, subsample
 from solver.qp.kernel_cache import KernelColumns
@@ -47,10 +48,12 @@ GAP_TARGET = 1e-9       # relative duality gap of the whole problem
 STALL_ROUNDS = 6        # rounds in a row without progress before giving up
 SNAP = 1e-6             # when the exact face step fails: alphas this close to a bound are put on it
 DEBUG = False
+ACTIVE_SET_STEPS = 60   # active-set steps tried before the interior point
+ACTIVE_SET_LIMIT = 300  # free variables up to which they are worth a try
 _BLAS = ThreadpoolController()
 START = "low_rank"
-LOW_RANK = 300
-LOW_RANK_TOL = 1e-9
+LOW_RANK = 100
+LOW_RANK_TOL = 1e-7
 
 
 def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
@@ -116,12 +119,18 @@ def _decompose(columns, y, upper, alpha, gradient, options, hard) -> DualSolutio
         linear = gradient[work] - Q_ww @ a_old
         bound = np.where(hard, 0.0, upper[work])
         rest = float(y @ alpha - yw @ a_old)          # y'a outside W: y_W'a_W = -rest
-        a_ip, nu, its, qp_status, _ = solve_qp(Q_ww, linear, yw, bound, -rest, options, hard,
-                                               start=a_old)
-        iterations += its
-        a_new, exact = polish(Q_ww, linear, yw, upper[work], -rest, a_ip, nu, SNAP)
-        if DEBUG:
-            print(f"   |W| = {len(work)}, {its} its, {qp_status}, exact face step {exact}")
+        # an active-set step from the face the round starts on (cheap: one solve on the
+        # free set) often ends a warm start; cvxopt's interior point where it does not
+        a_new = _face_step(Q_ww, linear, yw, upper[work], -rest, a_old)
+        if a_new is None:
+            a_ip, nu, its, qp_status, _ = solve_qp(Q_ww, linear, yw, bound, -rest, options,
+                                                   hard, start=a_old)
+            iterations += its
+            a_new, exact = polish(Q_ww, linear, yw, upper[work], -rest, a_ip, nu, SNAP)
+            if DEBUG:
+                print(f"   |W| = {len(work)}, {its} its, {qp_status}, exact face step {exact}")
+        elif DEBUG:
+            print(f"   |W| = {len(work)}, solved by an active-set step")
         a_new = _restore_equality(a_new, yw, upper[work], rest)
         step = a_new - a_old
         decrease = -(gradient[work] @ step + 0.5 * step @ Q_ww @ step)
@@ -144,6 +153,16 @@ def _decompose(columns, y, upper, alpha, gradient, options, hard) -> DualSolutio
     # (Q a)_i = g_i + 1 = y_i sum_j alpha_j y_j k_ij, so f_i = y_i (g_i + 1) + b
     decision = y * (gradient + 1.0) + b
     return DualSolution(alpha, b, decision, iterations, rounds, int(len(work)), status, gap)
+
+
+def _face_step(Q_ww, linear, y_w, upper_w, rhs, a_old):
+    """The sub-QP's optimum by active-set steps from a_old, or None when they
+    do not finish within ACTIVE_SET_STEPS (or the free set is too large to be cheap)."""
+    free = np.count_nonzero((a_old > 0) & (a_old < upper_w))
+    if not free or free > ACTIVE_SET_LIMIT:
+        return None
+    a_new, optimal = active_set(Q_ww, linear, y_w, upper_w, rhs, a_old, ACTIVE_SET_STEPS)
+    return a_new if optimal else None
 
 
 def _certificate(alpha, gradient, y, upper):
@@ -173,7 +192,9 @@ def _select(G, y, alpha, upper, b, batch, max_work, columns):
     down = np.flatnonzero(can_down & ~is_free)
     room = max_work - 2 * min(batch, max_work // 4)
     if len(free) <= room:
-        batch = min(max(batch, len(free) // 2), (max_work - len(free)) // 2)
+        # a poor start leaves hundreds of violators: take up to half of them per round
+        violators = max(np.count_nonzero(G[up] > b), np.count_nonzero(G[down] < b))
+        batch = min(max(batch, len(free) // 2, violators // 2), (max_work - len(free)) // 2)
         # the bound variables nearest to (or deepest in) violation on each side
         top_up = up[np.argsort(-G[up], kind="stable")[:batch]]
         top_down = down[np.argsort(G[down], kind="stable")[:batch]]
@@ -218,8 +239,8 @@ def _margins_from_subsample(columns, y, upper, options):
 def _alpha_from_low_rank(columns, y, upper, options, hard):
     """Alphas of the whole problem on a pivoted-Cholesky kernel, snapped onto their bounds."""
     V, d, _ = pivoted_cholesky(columns, min(LOW_RANK, len(y) // 2), LOW_RANK_TOL)
-    loose = replace(options, reltol=max(options.reltol, 1e-6), abstol=max(options.abstol, 1e-8),
-                    feastol=max(options.feastol, 1e-8))
+    loose = replace(options, reltol=max(options.reltol, 1e-5), abstol=max(options.abstol, 1e-7),
+                    feastol=max(options.feastol, 1e-7))
     found = solve_low_rank(V, d, y, upper, loose, hard)
     if DEBUG:
         print(f"low rank: r = {len(V)}, max residual {d.max():.1e}, "

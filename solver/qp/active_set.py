@@ -24,7 +24,8 @@ import numpy as np
 
 from solver.qp.dual_polish import _solve_face
 
-RELEASE = 8          # violating bound variables released per step, worst first
+RELEASE = 8          # violating bound variables released per step, worst first, at least
+RELEASE_SHARE = 4    # ... or this share of them (1/4) when there are many
 
 
 def active_set(Q, linear, y, upper, rhs, a0, steps):
@@ -48,7 +49,8 @@ def active_set(Q, linear, y, upper, rhs, a0, steps):
             wrong[wrong <= scale] = 0.0
             if not wrong.any():
                 return a, True
-            release = np.argsort(-wrong, kind="stable")[:RELEASE]
+            count = max(RELEASE, int(np.count_nonzero(wrong)) // RELEASE_SHARE)
+            release = np.argsort(-wrong, kind="stable")[:count]
             release = release[wrong[release] > 0]
             at_zero[release] = False
             at_upper[release] = False

@@ -41,7 +41,8 @@ from solver.qp.kernel_cache import KernelColumns
 from solver.qp.low_rank import pivoted_cholesky, solve_low_rank
 
 FULL_QP_LIMIT = 250     # up to this many points: the first round takes them all
-MAX_WORK = 600          # variables in one sub-QP
+MAX_WORK = 600         # variables in one sub-QP, as a rule
+LARGEST_WORK = 1000    # ... and when the free set is larger
 BATCH = 40              # violators of each side added per round, at least
 MAX_ROUNDS = 200
 GAP_TARGET = 1e-9       # relative duality gap of the whole problem
@@ -52,8 +53,9 @@ ACTIVE_SET_STEPS = 60   # active-set steps tried before the interior point
 ACTIVE_SET_LIMIT = 300  # free variables up to which they are worth a try
 _BLAS = ThreadpoolController()
 START = "low_rank"
-LOW_RANK = 100
+LOW_RANK = 200
 LOW_RANK_TOL = 1e-7
+LOW_RANK_RELTOL = 1e-4
 
 
 def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
@@ -113,7 +115,10 @@ def _decompose(columns, y, upper, alpha, gradient, options, hard) -> DualSolutio
         if n <= FULL_QP_LIMIT:
             work = np.arange(n)
         else:
-            work = _select(-y * gradient, y, alpha, upper, b, batch, max_work, columns)
+            # sub-QPs grow with the free set up to LARGEST_WORK (narrow kernels, large C)
+            free_now = np.count_nonzero((alpha > 0) & (alpha < upper))
+            size = min(max(max_work, free_now + 2 * BATCH), LARGEST_WORK, columns.capacity)
+            work = _select(-y * gradient, y, alpha, upper, b, batch, size, columns)
         yw, a_old = y[work], alpha[work]
         Q_ww = yw[:, None] * yw[None, :] * columns.block(work)
         linear = gradient[work] - Q_ww @ a_old
@@ -138,7 +143,8 @@ def _decompose(columns, y, upper, alpha, gradient, options, hard) -> DualSolutio
         if len(moved):
             gradient += y * columns.product(work[moved], yw[moved] * step[moved])
             alpha[work] = a_new
-        if decrease <= 1e-15 * max(1.0, abs(float(alpha @ (gradient - 1.0))) / 2):
+        # no progress: the round took less than a millionth of what is left of the gap
+        if decrease <= 1e-6 * max(gap, 1e-16) * max(1.0, abs(float(alpha @ (gradient - 1.0))) / 2):
             stalls += 1
             batch = min(2 * batch, max_work // 2)
             if stalls >= STALL_ROUNDS:
@@ -238,9 +244,11 @@ def _margins_from_subsample(columns, y, upper, options):
 
 def _alpha_from_low_rank(columns, y, upper, options, hard):
     """Alphas of the whole problem on a pivoted-Cholesky kernel, snapped onto their bounds."""
-    V, d, _ = pivoted_cholesky(columns, min(LOW_RANK, len(y) // 2), LOW_RANK_TOL)
-    loose = replace(options, reltol=max(options.reltol, 1e-5), abstol=max(options.abstol, 1e-7),
-                    feastol=max(options.feastol, 1e-7))
+    # rank 100 up to n = 2,000 (the reference is fast there), 200 above
+    rank = min(LOW_RANK if len(y) > 2_000 else LOW_RANK // 2, len(y) // 2)
+    V, d, _ = pivoted_cholesky(columns, rank, LOW_RANK_TOL)
+    loose = replace(options, reltol=max(options.reltol, LOW_RANK_RELTOL),
+                    abstol=max(options.abstol, 1e-7), feastol=max(options.feastol, 1e-7))
     found = solve_low_rank(V, d, y, upper, loose, hard)
     if DEBUG:
         print(f"low rank: r = {len(V)}, max residual {d.max():.1e}, "
@@ -249,5 +257,7 @@ def _alpha_from_low_rank(columns, y, upper, options, hard):
         return None
     alpha = found[0]
     scale = np.where(np.isfinite(upper), upper, max(float(alpha.max()), 1.0))
-    alpha = np.where(alpha <= 1e-4 * scale, 0.0, alpha)
-    return np.where(np.isfinite(upper) & (alpha >= (1 - 1e-4) * upper), upper, alpha)
+    # a loose interior point leaves bound alphas about sqrt(reltol) C off their bound
+    tau = 10 * np.sqrt(LOW_RANK_RELTOL)
+    alpha = np.where(alpha <= tau * scale, 0.0, alpha)
+    return np.where(np.isfinite(upper) & (alpha >= (1 - tau) * upper), upper, alpha)

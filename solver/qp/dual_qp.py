@@ -33,6 +33,7 @@ class DualSolution:
     working_set: int
     status: str
     gap: float
+    quadratic: float | None = None   # a'Qa = |w|^2, when the solver has it exactly
 
 
 def _kktsolver_factory(Q: np.ndarray, y: np.ndarray, hard: bool):

@@ -29,7 +29,7 @@ from PySide6.QtWidgets import QDockWidget, QScrollArea, QTabWidget
 
 SETTINGS_WIDTH = 300       # px: the widest Fit settings row ("C" slider + field) fits
 INSPECTOR_WIDTH = 280      # px: "functional margin y·f  -0.123456" fits
-SETTINGS_HEIGHT = 330      # px: every Fit settings row shown, the polynomial kernel's too
+SETTINGS_HEIGHT = 425      # px: every Fit settings row shown, the polynomial kernel's too
 STUDY_HEIGHT = 290         # px at 800 high; the sweep charts get >= 220 px of it
 STUDY_MIN_HEIGHT = 270
 BASE_SIZE = (1280, 800)    # the smallest screen the layout is designed for

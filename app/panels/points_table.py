@@ -171,7 +171,7 @@ class PointsModel(QAbstractTableModel):
                 return ""
             if column == 9:
                 return SHORT_STATUS[value]
-            digits = 6 if column in (1, 2) else 4
+            digits = {1: 6, 2: 6, 7: 3, 8: 3}.get(column, 4)   # alpha, slack: room for e-12
             return f"{value:.{digits}g}" if isinstance(value, float) else str(value)
         if role == Qt.TextAlignmentRole and index.column() not in (3, 9):
             return int(Qt.AlignRight | Qt.AlignVCenter)

@@ -28,7 +28,7 @@ from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import QDockWidget, QScrollArea, QTabWidget
 
 SETTINGS_WIDTH = 300       # px: the widest Fit settings row ("C" slider + field) fits
-INSPECTOR_WIDTH = 280      # px: "functional margin y·f  -0.123456" fits
+INSPECTOR_WIDTH = 250      # px: "functional margin y·f  -0.123456" fits
 SETTINGS_HEIGHT = 425      # px: every Fit settings row shown, the polynomial kernel's too
 STUDY_HEIGHT = 290         # px at 800 high; the sweep charts get >= 220 px of it
 STUDY_MIN_HEIGHT = 270

@@ -56,7 +56,7 @@ def _show_sweep_tab(window, qtbot):
     index = next(i for i in range(tabs.count()) if tabs.tabText(i) == "C sweep")
     qtbot.mouseClick(bar, Qt.LeftButton, pos=bar.tabRect(index).center())
     qtbot.wait(50)
-    return window.optional_panels["SweepPanel"]
+    return window.sweep
 
 
 def test_at_1280_by_800_every_sweep_chart_is_at_least_220_px_tall(window, qtbot):
@@ -87,7 +87,7 @@ def test_the_compare_tables_show_at_least_six_rows_at_1280_by_800(window, qtbot)
     tabs = window.workspace.studies
     window.workspace.show_study("Compare")
     qtbot.wait(50)
-    panel = window.optional_panels["ComparePanel"]
+    panel = window.compare
     for table in (panel.table, panel.changes):
         rows = table.viewport().height() // table.verticalHeader().defaultSectionSize()
         assert rows >= 6

@@ -17,6 +17,7 @@ from solver.study import summary
 from solver import STATUS_TEXT
 
 from app.document.background import BackgroundTask
+from app.document.document import PINNED, RESULT
 from app.document.sweep_store import sweep_store
 from app.document.provenance import provenance
 from app.panels.points_table import SHORT_STATUS
@@ -33,9 +34,8 @@ class ComparePanel(QWidget):
         self.task = None
         self._cv_cache = {}           # (points fingerprint, config) -> CVEstimate
         self._build()
-        for signal in (document.result_changed, document.pinned_changed,
-                       self.store.sweep_changed):
-            signal.connect(self.refresh)
+        document.changed.connect(self._document_changed)
+        self.store.sweep_changed.connect(self.refresh)
         self.refresh()
 
     def _build(self):
@@ -85,6 +85,10 @@ class ComparePanel(QWidget):
             if estimate is not None:
                 return estimate
         return self._cv_cache.get(_key(result))
+
+    def _document_changed(self, changes):
+        if changes & {RESULT, PINNED}:
+            self.refresh()
 
     def refresh(self):
         document = self.document

@@ -18,6 +18,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QHBoxLayout, QHeade
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, STATUSES
 
+from app.document.document import METADATA, POINTS, RESULT, SELECTION
 from app.panels.units import length_suffix
 
 REFRESH_MS = 120   # new fits reach the table at most this often: the canvas goes first
@@ -48,9 +49,14 @@ class PointsModel(QAbstractTableModel):
         self._result = None
         self._refresh = QTimer(self, singleShot=True, interval=REFRESH_MS)
         self._refresh.timeout.connect(self._result_changed)
-        document.points_changed.connect(self._reset)
-        document.result_changed.connect(self._refresh.start)
+        document.changed.connect(self._document_changed)
         self._reset()
+
+    def _document_changed(self, changes):
+        if changes & {POINTS, METADATA}:
+            self._reset()
+        elif RESULT in changes:
+            self._refresh.start()
 
     def _matching_result(self):
         doc, result = self.document, self.document.result
@@ -246,7 +252,6 @@ class PointsTable(QWidget):
         self.refusal = QLabel("", objectName="points_refusal")
         self.refusal.setStyleSheet("color: #a4161a;")
         self.model.refused.connect(self.refusal.setText)
-        document.points_changed.connect(lambda: self.refusal.setText(""))
         top = QHBoxLayout()
         top.addWidget(QLabel("show"))
         top.addWidget(self.filter)
@@ -257,8 +262,14 @@ class PointsTable(QWidget):
         layout.addWidget(self.view)
         self._syncing = False
         self.view.selectionModel().selectionChanged.connect(self._table_selected)
-        document.selection_changed.connect(self._document_selected)
+        document.changed.connect(self._document_changed_for_view)
         self.model.modelReset.connect(self._document_selected)
+
+    def _document_changed_for_view(self, changes):
+        if SELECTION in changes:
+            self._document_selected()
+        if POINTS in changes:
+            self.refusal.setText("")
 
     def _fit_values_changed(self, *_):
         if self.proxy.status is not None or self.proxy.sortColumn() >= 4:

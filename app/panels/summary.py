@@ -6,6 +6,7 @@ from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN
 
+from app.document.document import METADATA, RESULT
 from app.panels.units import length_suffix, units_sentence
 
 ROWS = (   # (key, title, tooltip)
@@ -48,15 +49,22 @@ class Summary(QWidget):
             label.setTextInteractionFlags(label.textInteractionFlags() | _selectable())
             label.setWordWrap(key in ("state", "units", "margin", "w"))
             self.values[key] = label
-            form.addRow(title, label)
+            if key == "state":
+                # the whole width, so a long reason (hard margin refused) wraps, never cut
+                form.addRow(label)
+            else:
+                form.addRow(title, label)
             if form.labelForField(label) is not None:
                 form.labelForField(label).setToolTip(tip)
-        document.result_changed.connect(self.refresh)
-        document.solve_failed.connect(lambda _message: self.refresh())
+        document.changed.connect(self._document_changed)
         self.refresh()
 
     def text(self, key: str) -> str:
         return self.values[key].text()
+
+    def _document_changed(self, changes):
+        if changes & {RESULT, METADATA}:
+            self.refresh()
 
     def refresh(self):
         doc, result = self.document, self.document.result

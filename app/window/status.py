@@ -10,6 +10,8 @@ from __future__ import annotations
 from PySide6.QtCore import QEvent, QObject
 from PySide6.QtWidgets import QLabel, QProgressBar
 
+from app.document.document import CONFIG, ERROR, PINNED, POINTS, RESULT
+
 KERNEL_WORDS = {"linear": "linear", "polynomial": "polynomial", "rbf": "Gaussian (RBF)"}
 PIN_MESSAGE_MS = 8000
 
@@ -46,14 +48,18 @@ class StatusReadouts:
         self._mouse = None
         canvas.scene().sigMouseMoved.connect(self._mouse_moved)
         canvas.viewport().installEventFilter(_LeaveWatch(self, canvas.viewport()))
-        for signal in (document.points_changed, document.config_changed,
-                       document.result_changed):
-            signal.connect(self.refresh)
         document.busy_changed.connect(self._busy)
         self._failure = None
-        document.solve_failed.connect(self._failed)
-        document.pinned_changed.connect(self._pinned)
+        document.changed.connect(self._document_changed)
         self.refresh()
+
+    def _document_changed(self, changes):
+        if ERROR in changes:
+            self._failed(self.document.last_error)
+        if changes & {POINTS, CONFIG, RESULT}:
+            self.refresh()
+        if PINNED in changes:
+            self._pinned()
 
     # -- the cursor ------------------------------------------------------------
     def mouse_left(self):

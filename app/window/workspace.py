@@ -14,15 +14,13 @@
 The left column runs the full height (it owns both left corners), so the
 fit settings and the read-outs are always in sight and the canvas gets the
 whole remaining width.  The study views share one tabbed dock under the
-canvas, with the inspector of the selected point beside them: a panel in the
-window's OPTIONAL_PANELS becomes one more tab.  The Fit settings column has a
+canvas, with the inspector of the selected point beside them: a "study"
+panel in app/window/panels.py becomes one more tab.  The Fit settings column has a
 fixed width, so it never jumps when the kernel shows or hides gamma, degree
 and offset.
 """
 
 from __future__ import annotations
-
-import importlib
 
 from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import QDockWidget, QScrollArea, QTabWidget
@@ -84,19 +82,16 @@ class Workspace:
         self.study_panels[title] = panel
         return index
 
-    def add_optional_studies(self, document, specs):
-        """(module, class, title[, tooltip]) panels written elsewhere; absent ones are skipped."""
-        panels = {}
-        for spec in specs:
-            module_name, class_name, title = spec[:3]
-            try:
-                panel_class = getattr(importlib.import_module(module_name), class_name)
-            except (ImportError, AttributeError):
-                continue
-            panel = panel_class(document)
-            panels[class_name] = panel
-            self.add_study(title, panel, spec[3] if len(spec) > 3 else "")
-        return panels
+    def place(self, spec, panel):
+        """Put ``panel`` where its app.window.panels entry says."""
+        if spec.place == "settings":
+            self.settings_column(panel)
+        elif spec.place == "left":
+            self.dock(spec.title, panel, Qt.LeftDockWidgetArea, scroll=True)
+        elif spec.place == "study":
+            self.add_study(spec.title, panel, spec.tooltip)
+        elif spec.place != "inspector":          # the inspector is docked by finish()
+            raise ValueError(f"unknown panel place {spec.place!r} for {spec.title!r}")
 
     def finish(self, inspector=None):
         """Dock the study tabs (and the inspector beside them); set the starting sizes."""

@@ -126,7 +126,7 @@ class ComparePanel(QWidget):
         widths = [max(self.table.sizeHintForColumn(c), header.sectionSizeHint(c))
                   for c in range(self.table.columnCount())]
         scroll = self.table.verticalScrollBar().sizeHint().width()
-        self.table.setMinimumWidth(sum(widths) + 2 * self.table.frameWidth() + scroll + 4)
+        self.table.setMinimumWidth(sum(widths) + 2 * self.table.frameWidth() + scroll + 12)
 
     def _fill_changes(self):
         comparison = self.comparison

@@ -23,7 +23,6 @@ solves), 2 when the file is invalid.
 
 from __future__ import annotations
 
-import json
 import sys
 from dataclasses import asdict, dataclass
 
@@ -32,6 +31,7 @@ import numpy as np
 from solver.errors import ConvergenceError, NotSeparableError
 from solver.files.experiment import load_experiment, provenance, results_to_dict
 from solver.fit import fit
+from cli.outputs import print_json
 
 RELATIVE = 1e-6
 OBJECTIVE_RELATIVE = 1e-7
@@ -72,11 +72,9 @@ def run(args) -> int:
     drifted = [c for c in comparisons if not c.agrees]
     changed = version_changes(experiment.written, provenance())
     if args.json:
-        json.dump({"file": str(args.experiment), "agrees": not drifted,
-                   "software_changes": changed,
-                   "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]},
-                  sys.stdout)
-        sys.stdout.write("\n")
+        print_json({"file": str(args.experiment), "agrees": not drifted,
+                    "software_changes": changed,
+                    "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]})
     else:
         print(report_text(args.experiment, len(dataset), config, comparisons))
         if changed:

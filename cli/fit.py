@@ -2,12 +2,12 @@
 
 from __future__ import annotations
 
-import json
 import sys
 
 from solver.fit import fit
 from solver.result import STATUS_TEXT, STATUSES, result_to_dict
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
+from cli.outputs import check_outputs, print_json, write_outputs
 
 
 def add_arguments(parser) -> None:
@@ -20,19 +20,19 @@ def add_arguments(parser) -> None:
 
 
 def run(args) -> int:
+    outputs = check_outputs([args.data], {"--save": args.save})
     dataset = load_data(args)
     config = config_from_args(args, dataset)
     print(f"labels: {dataset.mapping_text()}", file=sys.stderr)
     result = fit(dataset.X, dataset.y, config)
-    if args.save:
+    if outputs:
         from solver.files.experiment import save_experiment  # the file layer
-        save_experiment(args.save, dataset, result)
+        write_outputs([(outputs[0], lambda path: save_experiment(path, dataset, result))])
     if args.json:
         data = result_to_dict(result)
         data["features"] = list(dataset.feature_names)
         data["label_mapping"] = {str(k): v for k, v in dataset.label_mapping.items()}
-        json.dump(data, sys.stdout)
-        sys.stdout.write("\n")
+        print_json(data)
     else:
         print(summary_text(result, dataset))
     return 0

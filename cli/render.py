@@ -6,8 +6,9 @@ import sys
 from pathlib import Path
 
 from app.canvas.figure import DEFAULT_SIZE, FORMATS, parse_size, save_figure  # no Qt at import
+from cli.outputs import check_outputs, write_outputs
 from solver.errors import InputError
-
+from solver.messages import quote
 
 
 def add_arguments(parser) -> None:
@@ -24,13 +25,16 @@ def run(args) -> int:
     from solver.fit import fit
 
     width, height = parse_size(args.size)
-    if Path(args.output).suffix.lower() not in FORMATS:
-        raise InputError(f"the figure must end in .png or .svg; got {args.output!r}")
+    suffix = Path(args.output).suffix.lower()
+    if suffix not in FORMATS:
+        raise InputError(f"the figure must end in .png or .svg; got {quote(args.output)}")
+    outputs = check_outputs([args.experiment], {"-o": args.output})
     experiment = load_experiment(args.experiment)
     dataset = experiment.dataset
     # the stored figures are a record; the picture is drawn from a fresh fit of
     # the same points and settings, the same numbers `slackline check` verifies
     result = fit(dataset.X, dataset.y, experiment.config)
-    path = save_figure(args.output, dataset, result, width, height)
-    print(f"wrote {path} ({width}x{height})", file=sys.stderr)
+    write_outputs([(outputs[0], lambda path: save_figure(path, dataset, result, width, height,
+                                                         suffix=suffix))])
+    print(f"wrote {args.output} ({width}x{height})", file=sys.stderr)
     return 0

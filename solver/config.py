@@ -9,6 +9,7 @@ import math
 from dataclasses import asdict, dataclass, field, replace
 
 from solver.errors import InputError
+from solver.limits import check_setting
 
 KERNELS = ("linear", "polynomial", "rbf")
 SCALINGS = ("none", "zscore", "range")
@@ -89,8 +90,11 @@ class FitConfig:
 
 
 def _is_positive_number(value) -> bool:
-    return (isinstance(value, (int, float)) and not isinstance(value, bool)
-            and math.isfinite(value) and value > 0)
+    try:
+        return (isinstance(value, (int, float)) and not isinstance(value, bool)
+                and math.isfinite(value) and value > 0)
+    except OverflowError:   # an int beyond any float
+        return False
 
 
 def _check_config(config: FitConfig) -> None:
@@ -98,10 +102,14 @@ def _check_config(config: FitConfig) -> None:
         raise InputError(f"hard_margin must be true or false; got {config.hard_margin!r}")
     if not config.hard_margin and not _is_positive_number(config.C):
         raise InputError(f"C must be a positive number or 'hard'; got {config.C!r}")
+    if not config.hard_margin:
+        check_setting("C", config.C)
     if config.kernel not in KERNELS:
         raise InputError(f"kernel must be one of {', '.join(KERNELS)}; got {config.kernel!r}")
     if config.kernel in ("polynomial", "rbf") and not _is_positive_number(config.gamma):
         raise InputError(f"gamma must be a positive number; got {config.gamma!r}")
+    if config.kernel in ("polynomial", "rbf"):
+        check_setting("gamma", config.gamma)
     if config.kernel == "polynomial":
         degree = config.degree
         if isinstance(degree, float) and degree.is_integer():
@@ -109,13 +117,14 @@ def _check_config(config: FitConfig) -> None:
             degree = config.degree
         if not isinstance(degree, int) or isinstance(degree, bool) or not 1 <= degree <= 10:
             raise InputError(f"degree must be a whole number from 1 to 10; got {degree!r}")
-        if not (isinstance(config.offset, (int, float)) and math.isfinite(config.offset)
-                and config.offset >= 0):
+        if not (_is_positive_number(config.offset) or config.offset == 0):
             raise InputError(f"offset must be a number >= 0 (so the polynomial kernel is an "
                              f"inner product of real features); got {config.offset!r}")
+        check_setting("offset", config.offset)
     for name in ("weight_positive", "weight_negative"):
         value = getattr(config, name)
         if not _is_positive_number(value):
             raise InputError(f"{name} (a class weight) must be a positive number; got {value!r}")
+        check_setting("weight", value, f"{name} (a class weight)")
     if config.scaling not in SCALINGS:
         raise InputError(f"scaling must be one of {', '.join(SCALINGS)}; got {config.scaling!r}")

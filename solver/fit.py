@@ -6,10 +6,10 @@ import time
 
 import numpy as np
 
-from solver import scaling
+from solver import limits, scaling
 from solver import kernels
 from solver.config import FitConfig
-from solver.errors import ConvergenceError, InputError
+from solver.errors import ConvergenceError, InputError, SlacklineError
 from solver.model import DecisionModel
 from solver.qp.primal_solver import solve_primal
 from solver.qp.dual_solver import solve_dual
@@ -50,6 +50,7 @@ def validate_points(X, y) -> tuple[np.ndarray, np.ndarray]:
     if (X == X[0]).all():
         raise InputError("all points sit at the same coordinates; no boundary can be "
                          "drawn between them — move or add points")
+    limits.check_coordinates(X)
     return X, y.astype(int)
 
 
@@ -60,6 +61,18 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
     result; kernel fits use its decision function to guess the working set.
     Raises a SlacklineError subclass on anything it cannot fit.
     """
+    try:
+        return _fit(X, y, config, warm_start)
+    except SlacklineError:
+        raise
+    except (ArithmeticError, ValueError, np.linalg.LinAlgError) as exc:
+        # within solver.limits this is not expected; outside a traceback helps nobody
+        raise ConvergenceError(f"the solver could not work with these numbers "
+                               f"({type(exc).__name__}: {exc}); scale the features "
+                               f"(zscore) or choose C nearer 1") from None
+
+
+def _fit(X, y, config, warm_start) -> FitResult:
     config = config or FitConfig()
     if not isinstance(config, FitConfig):
         raise InputError(f"config must be a FitConfig; got {type(config).__name__}")
@@ -68,6 +81,7 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
     shift, scale = scaling.scaling_parameters(X, config.scaling)
     Xs = scaling.apply(X, shift, scale)
     penalties = np.array([config.penalty(sign) for sign in (1, -1)])[(y < 0).astype(int)]
+    limits.check_problem_scale(Xs, config, penalties)
 
     if config.uses_feature_map:
         phi = kernels.feature_map(Xs, config.kernel, config.gamma, config.degree, config.offset)
@@ -116,6 +130,7 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
                        kkt=kkt, iterations=sol.iterations, seconds=seconds,
                        converged=converged, solver_status=sol.status, rounds=rounds,
                        working_set=working_set)
+    limits.check_figures(result.w, result.b, decision)
     if not converged:
         raise ConvergenceError(
             f"the solver stopped after {sol.iterations} iterations without reaching its "

@@ -2,10 +2,10 @@
 
 from __future__ import annotations
 
+import math
 import sys
 
-from solver.fit import fit
-from solver.result import STATUS_TEXT, STATUSES, result_to_dict
+from solver import STATUS_TEXT, STATUSES, fit
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 from cli.outputs import check_outputs, print_json, write_outputs
 
@@ -26,16 +26,24 @@ def run(args) -> int:
     print(f"labels: {dataset.mapping_text()}", file=sys.stderr)
     result = fit(dataset.X, dataset.y, config)
     if outputs:
-        from solver.files.experiment import save_experiment  # the file layer
+        from solver.files import save_experiment  # the file layer
         write_outputs([(outputs[0], lambda path: save_experiment(path, dataset, result))])
     if args.json:
-        data = result_to_dict(result)
+        data = result.to_dict()
+        data["functional_margin"] = result.functional_margin.tolist()   # y_i f(x_i)
+        data["distance"] = _finite_list(result.distance)                 # y_i f(x_i) / |w|
+        if result.projection is not None:
+            data["projection"] = result.projection.tolist()               # w.x_i / |w|
         data["features"] = list(dataset.feature_names)
         data["label_mapping"] = {str(k): v for k, v in dataset.label_mapping.items()}
         print_json(data)
     else:
         print(summary_text(result, dataset))
     return 0
+
+
+def _finite_list(values) -> list:
+    return [float(v) if math.isfinite(v) else None for v in values]
 
 
 def summary_text(result, dataset) -> str:

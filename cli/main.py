@@ -11,7 +11,7 @@ import importlib
 import os
 import sys
 
-from solver.errors import SlacklineError
+from solver import SlacklineError
 from solver.messages import MESSAGE_LIMIT, one_line
 
 PROBLEMS_SHOWN = 20    # problems of an invalid file listed below the message, one per line
@@ -44,10 +44,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name, (module_name, help_text) in COMMANDS.items():
         command_parser = sub.add_parser(name, help=help_text, description=help_text)
-        try:
-            module = importlib.import_module(module_name)
-        except ImportError:
-            continue  # a command still under construction
+        module = importlib.import_module(module_name)   # a broken command fails loudly
         module.add_arguments(command_parser)
         command_parser.set_defaults(run=module.run)
     return parser
@@ -66,7 +63,8 @@ def main(argv=None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     if getattr(args, "run", None) is None:
-        parser.error(f"the command {args.command!r} is not available in this build")
+        parser.print_help(sys.stderr)
+        return 2
     try:
         return int(args.run(args) or 0)
     except SlacklineError as exc:

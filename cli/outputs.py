@@ -29,7 +29,7 @@ from pathlib import Path
 
 from solver.errors import InputError
 from solver.files.atomic import commit, file_stamp, stage
-from solver.messages import path_text, quote
+from solver.messages import path_text
 
 
 @dataclass(frozen=True)

@@ -7,7 +7,7 @@ from pathlib import Path
 
 from app.canvas.figure import DEFAULT_SIZE, FORMATS, parse_size, save_figure  # no Qt at import
 from cli.outputs import check_outputs, write_outputs
-from solver.errors import InputError
+from solver import InputError
 from solver.messages import quote
 
 
@@ -21,8 +21,8 @@ def add_arguments(parser) -> None:
 
 
 def run(args) -> int:
-    from solver.files.experiment import load_experiment
-    from solver.fit import fit
+    from solver.files import load_experiment
+    from solver import fit
 
     width, height = parse_size(args.size)
     suffix = Path(args.output).suffix.lower()

@@ -1,7 +1,8 @@
 """The numeric limits of a fit: what the solver resolves, checked before it starts.
 
-Settings have fixed ranges (``SETTING_LIMITS``, read by solver.config).  The
-data add two more, because a support vector machine's solution depends on C
+Settings have fixed ranges, declared in solver.parameters (C from 1e-9 to
+1e12, gamma from 1e-9 to 1e9, offset from 0 to 1e9, class weights from 1e-6
+to 1e6, degree 1 to 10).  The data add more, because a support vector machine's solution depends on C
 and the kernel only through their product with the size of the kernel
 values: scaling the coordinates by s multiplies the linear kernel by s^2,
 and the fit with C on the scaled points is the fit with C s^2 on the
@@ -36,29 +37,10 @@ import numpy as np
 
 from solver.errors import InputError
 
-# name: (smallest, largest) allowed, both ends included
-SETTING_LIMITS = {
-    "C": (1e-9, 1e12),
-    "weight": (1e-6, 1e6),         # a class weight; C * weight stays within C's range
-    "gamma": (1e-9, 1e9),
-    "offset": (0.0, 1e9),
-    "degree": (1, 10),
-}
 COORDINATE = 1e100               # largest |x| of a point, in the user's units
 SPREAD = 1e-12                   # smallest (max - min) / max|x| of a feature that varies
 EFFECTIVE_C = (1e-9, 1e12)       # C_i * max k(u_i, u_i)
 KERNEL_VALUE = 1e100             # largest polynomial k(u, u)
-
-
-def check_setting(name: str, value, label: str | None = None) -> None:
-    """InputError unless ``value`` lies within SETTING_LIMITS[name] (finite numbers only)."""
-    low, high = SETTING_LIMITS[name]
-    if low <= value <= high:
-        return
-    label = label or name
-    hint = {"C": "; for C = infinity use a hard margin (--hard)" if value > high else
-                 "; a smaller C leaves every alpha at its bound"}.get(name, "")
-    raise InputError(f"{label} must lie between {low:g} and {high:g}; got {value:g}{hint}")
 
 
 def check_coordinates(X: np.ndarray) -> None:

@@ -25,7 +25,7 @@ import math
 from solver.config import FitConfig
 from solver.errors import InputError
 from solver.files.schema_check import cap, short
-from solver.kernels import poly_exponents
+from solver.kernels import polynomial
 
 RELATIVE = 1e-6   # stored figures are rounded to a float's repr: far tighter than this
 
@@ -135,7 +135,7 @@ def _model_problems(results, config) -> list[str]:
         problems += _expect_list(model, "feature_weights", columns,
                                  "/results/model/feature_weights",
                                  f"one weight per monomial of degree {config['degree']}")
-    else:
+    elif kernel == "rbf":
         problems += _expect_none(results, "w", "/results/w", "an rbf kernel")
         vectors = model.get("support_vectors")
         count = len(vectors) if isinstance(vectors, list) else 0
@@ -148,8 +148,9 @@ def _model_problems(results, config) -> list[str]:
 
 def _poly_columns(config) -> int:
     """Columns of the polynomial feature map: offset 0 drops the monomials with k > 0."""
-    degree = int(config["degree"])
-    return sum(1 for _i, _j, k in poly_exponents(degree) if k == 0 or config["offset"] != 0)
+    degree, offset = int(config["degree"]), config["offset"]
+    return sum(1 for i, j, k in polynomial.exponents(degree)
+               if polynomial._multinomial(degree, i, j, k, offset) != 0.0)
 
 
 def _expect_list(owner, key, length, path, what) -> list[str]:

@@ -15,6 +15,7 @@ from solver import InputError
 from solver.study import DEFAULT_FROM, DEFAULT_STEPS, DEFAULT_TO, SweepSettings, run_sweep
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 from cli.outputs import print_json
+from solver.parameters import PARAMETERS
 
 SEED_LIMIT = 2 ** 32 - 1   # numpy's SeedSequence / scikit-learn's random_state take 0 .. 2**32 - 1
 STEPS_LIMIT = 1000
@@ -91,6 +92,8 @@ def _check_options(args) -> None:
     for option, value in (("--from", args.c_from), ("--to", args.c_to)):
         if not (math.isfinite(value) and value > 0):
             raise InputError(f"{option} must be a positive number; got {value:g}")
+        if PARAMETERS["C"].problem(value) is not None:   # each C of the grid is a fit's C
+            raise InputError(f"{option} must be {PARAMETERS['C'].describe()}; got {value:g}")
 
 
 def _run_with_progress(dataset, config, settings, jobs):

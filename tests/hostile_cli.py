@@ -23,7 +23,10 @@ def refused(capsys, argv, inputs=(), match="", code=2, problems=False):
     every stderr line bounded, no traceback, and ``inputs`` byte for byte unchanged.
     Returns the message line."""
     before = {Path(p): Path(p).read_bytes() for p in inputs}
-    status = main([str(a) for a in argv])
+    try:
+        status = main([str(a) for a in argv])
+    except SystemExit as exc:          # argparse refuses an option by exiting
+        status = exc.code
     out, err = capsys.readouterr()
     assert "Traceback" not in err
     assert status == code, err
@@ -37,6 +40,19 @@ def refused(capsys, argv, inputs=(), match="", code=2, problems=False):
     for path, content in before.items():
         assert path.read_bytes() == content, f"{path} was changed"
     return messages[0]
+
+
+def resealed(path, edit):
+    """The experiment at ``path`` edited by ``edit(document)`` and sealed again (a careful
+    forger's file: its checksum matches, only its content disagrees with itself)."""
+    import json
+    from solver.files import content_checksum
+    from solver.files.experiment import json_text
+    document = json.loads(Path(path).read_text())
+    edit(document)
+    document["checksum"]["value"] = content_checksum(document)
+    Path(path).write_text(json_text(document))
+    return path
 
 
 def succeeded(capsys, argv):

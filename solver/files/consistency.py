@@ -100,7 +100,8 @@ def _norm_problems(results) -> list[str]:
         problems.append(f"/results/margin_width: expected 2 / weight_norm = {2.0 / norm:.10g}; "
                         f"got {short(width)}")
     model, w = results["model"], results["w"]
-    if model["kernel"] == "linear" and w is not None and _lengths_ok(model, 2):
+    if model["kernel"] == "linear" and w is not None and _lengths_ok(model, 2) \
+            and all(math.isfinite(v) and v > 0 for v in model["scale"]):
         from_model = [fw / s for fw, s in zip(model["feature_weights"], model["scale"])]
         if not all(_close(a, b, scale=max(map(abs, from_model))) for a, b in zip(w, from_model)):
             problems.append(f"/results/w: expected feature_weights / scale = "

@@ -136,6 +136,8 @@ def load_experiment(path) -> Experiment:
         raise FileFormatError(f"{path.name} is empty; an experiment file holds one JSON object")
     try:
         data = parse_untrusted(text, path.name)
+    except FileFormatError:
+        raise
     except json.JSONDecodeError as exc:
         hint = " (the file looks cut short)" if exc.pos >= len(text.rstrip()) else ""
         raise FileFormatError(f"{path.name} is not valid JSON: {exc.msg} at line {exc.lineno}, "

@@ -95,12 +95,16 @@ def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=No
     return document
 
 
-def save_experiment(path, dataset: Dataset, result, note=None, config=None) -> Path:
-    """Write ``dataset`` with ``result`` (or, unfitted, with ``config``) to ``path`` atomically."""
+def save_experiment(path, dataset: Dataset, result, note=None, config=None,
+                    **write_options) -> Path:
+    """Write ``dataset`` with ``result`` (or, unfitted, with ``config``) to ``path`` atomically.
+
+    ``write_options`` go to atomic_write_text (``expect``: what must still be on disk).
+    """
     if config is None:
         config = result.config if result is not None else FitConfig()
     document = experiment_to_dict(dataset, config, result, note=note)
-    atomic_write_text(path, json_text(document))
+    atomic_write_text(path, json_text(document), **write_options)
     return Path(path)
 
 

@@ -1,7 +1,8 @@
-"""``slackline export EXPERIMENT.json --points out.csv --model out.json``.
+"""``slackline export EXPERIMENT.json --points out.csv --classifier out.json``.
 
-Writes the experiment's per-point table (CSV) and/or its model card (JSON)
-from the figures stored in the file.  An experiment saved without results is
+Writes the experiment's per-point table (CSV) and/or its classifier file
+(JSON: the decision function, what it was trained on, and the cautions) from
+the figures stored in the file.  An experiment saved without results is
 fitted first with its stored configuration (said on stderr).  Both outputs
 are checked before the experiment is read, and written together or not at
 all (cli.outputs).
@@ -9,21 +10,22 @@ all (cli.outputs).
 
 from __future__ import annotations
 
+import argparse
 import sys
 
+from cli.common import Renamed as _Renamed
 from cli.outputs import check_outputs, write_outputs
-from solver import InputError
-from solver.files import load_experiment
-from solver.files import write_model_card, write_points_csv
-from solver import fit
+from solver import CAUTION_LINE, InputError, fit
+from solver.files import load_experiment, write_classifier, write_points_csv
 
 # option, metavar, help, writer(path, dataset, figures), what it is
 OUTPUTS = (
     ("--points", "OUT.csv", "per-point table: features, label, sign, decision value, "
      "functional margin, distance, alpha, slack, status", write_points_csv,
-     "the per-point table"),
-    ("--model", "OUT.json", "model card: what it takes to apply the classifier elsewhere",
-     write_model_card, "the model card"),
+     "the per-point table of {n} points"),
+    ("--classifier", "OUT.json", "classifier file: the decision function with what it takes "
+     "to apply it elsewhere, what it was trained on, and the cautions", write_classifier,
+     "the classifier"),
 )
 
 
@@ -31,6 +33,7 @@ def add_arguments(parser) -> None:
     parser.add_argument("experiment", metavar="EXPERIMENT.json", help="experiment file to read")
     for option, metavar, help_text, _writer, _what in OUTPUTS:
         parser.add_argument(option, metavar=metavar, help=help_text)
+    parser.add_argument("--model", nargs="?", action=_Renamed, help=argparse.SUPPRESS)
 
 
 def run(args) -> int:
@@ -50,7 +53,9 @@ def run(args) -> int:
     write_outputs([(output, _bound(writers[output.option][0], experiment.dataset, figures))
                    for output in planned])
     for output in planned:
-        print(f"wrote {writers[output.option][1]} to {output.path}")
+        what = writers[output.option][1].format(n=len(experiment.dataset))
+        print(f"wrote {what} to {output.path}")
+    print(CAUTION_LINE, file=sys.stderr)
     return 0
 
 

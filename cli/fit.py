@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 import sys
 
-from solver import STATUS_TEXT, STATUSES, fit
+from solver import CAUTION_LINE, INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, fit
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 from cli.outputs import check_outputs, print_json, write_outputs
 
@@ -39,6 +39,7 @@ def run(args) -> int:
         print_json(data)
     else:
         print(summary_text(result, dataset))
+    print(CAUTION_LINE, file=sys.stderr)
     return 0
 
 
@@ -57,8 +58,10 @@ def summary_text(result, dataset) -> str:
                      f"margin width 2/|w| = {result.margin_width:.6g}")
     else:
         lines.append(f"  b = {result.b:.6g}")
-    counts = ", ".join(f"{result.count(s)} {STATUS_TEXT[s]}" for s in STATUSES)
-    lines.append(f"  support vectors: {result.n_support}  ({counts})")
+    held = ", ".join(f"{result.count(s)} {STATUS_TEXT[s]}" for s in (ON_MARGIN, INSIDE,
+                                                                      MISCLASSIFIED))
+    lines.append(f"  support vectors: {result.n_support} ({held}); "
+                 f"the other {result.count(OUTSIDE)} points are {STATUS_TEXT[OUTSIDE]}")
     lines.append(f"  training error {result.training_error:.1%}   objective "
                  f"1/2|w|^2 = {result.half_norm_w2:.6g}, sum C_i xi_i = {result.penalty_term:.6g}")
     lines.append(f"  primal {result.primal_objective:.10g}  dual {result.dual_objective:.10g}  "

@@ -21,7 +21,7 @@ PROBLEMS_SHOWN = 20    # problems of an invalid file listed below the message, o
 COMMANDS = {
     "fit": ("cli.fit", "fit a support vector machine to a CSV/TSV file"),
     "check": ("cli.check", "re-run an experiment file and compare its numbers"),
-    "export": ("cli.export", "write an experiment's points table or model card"),
+    "export": ("cli.export", "write an experiment's points table or classifier file"),
     "sweep": ("cli.sweep", "fit across a range of C with cross-validation"),
     "render": ("cli.render", "draw an experiment's canvas to a PNG/SVG file, no window"),
 }

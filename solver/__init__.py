@@ -5,6 +5,7 @@
 """
 
 from solver import kernels
+from solver.cautions import CAUTION_LINE, CAUTIONS
 from solver.config import FitConfig, SolverOptions
 from solver.errors import (ConvergenceError, FileFormatError, InputError, NotSeparableError,
                            SlacklineError)
@@ -19,6 +20,6 @@ __version__ = "0.1.0"
 __all__ = [
     "fit", "validate_points", "FitConfig", "SolverOptions", "FitResult", "KKTResiduals",
     "DecisionModel", "STATUSES", "STATUS_TEXT", "INSIDE", "MISCLASSIFIED", "ON_MARGIN",
-    "OUTSIDE", "kernels", "PARAMETERS", "Parameter", "SlacklineError", "InputError",
+    "OUTSIDE", "CAUTIONS", "CAUTION_LINE", "kernels", "PARAMETERS", "Parameter", "SlacklineError", "InputError",
     "NotSeparableError", "ConvergenceError", "FileFormatError", "__version__",
 ]

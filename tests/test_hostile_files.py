@@ -66,7 +66,7 @@ def test_990_nested_arrays_are_refused_before_anything_recurses(capsys, linear, 
     text = json_text(document).replace('"' + "[" * 990 + "]" * 990 + '"',
                                        "[" * 990 + "]" * 990)
     linear.write_text(text)
-    argv = {"check": ["check", linear], "export": ["export", linear, "--model",
+    argv = {"check": ["check", linear], "export": ["export", linear, "--classifier",
                                                    tmp_path / "m.json"],
             "render": ["render", linear, "-o", tmp_path / "r.png"]}[command]
     refused(capsys, argv, [linear], r"nests arrays and objects 99\d deep; an experiment nests "
@@ -138,7 +138,7 @@ def test_every_disagreement_between_stored_fields_is_named_by_path_under_check(
 def test_an_rbf_experiment_whose_coefficients_miss_a_vector_is_refused(capsys, rbf, tmp_path):
     resealed(rbf, lambda d: d["results"]["model"].update(
         coefficients=d["results"]["model"]["coefficients"][:-1]))
-    refused(capsys, ["export", rbf, "--model", tmp_path / "m.json"], [rbf],
+    refused(capsys, ["export", rbf, "--classifier", tmp_path / "m.json"], [rbf],
             r"not a valid experiment file", problems=True)
 
 

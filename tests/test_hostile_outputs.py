@@ -28,7 +28,7 @@ def test_fit_refuses_a_save_that_is_a_hard_link_to_the_data(capsys, data_csv):
             r"is the file this command reads")
 
 
-@pytest.mark.parametrize("option", ["--points", "--model"])
+@pytest.mark.parametrize("option", ["--points", "--classifier"])
 def test_export_refuses_to_write_over_its_experiment(capsys, experiment, option):
     refused(capsys, ["export", experiment, option, experiment], [experiment],
             rf"{option} .*experiment\.json is the file this command reads")
@@ -36,8 +36,8 @@ def test_export_refuses_to_write_over_its_experiment(capsys, experiment, option)
 
 def test_export_refuses_two_outputs_onto_one_path(capsys, experiment, tmp_path):
     out = tmp_path / "both.json"
-    refused(capsys, ["export", experiment, "--points", out, "--model", out], [experiment],
-            r"--points and --model both name .*both\.json")
+    refused(capsys, ["export", experiment, "--points", out, "--classifier", out], [experiment],
+            r"--points and --classifier both name .*both\.json")
     assert not out.exists()
 
 
@@ -64,7 +64,7 @@ def test_an_output_that_is_a_folder_is_refused(capsys, tmp_path, command, data_c
     folder.mkdir()
     argv = {"render": ["render", experiment, "-o", folder],
             "fit": ["fit", data_csv, "--positive", "pass", "--save", folder],
-            "export": ["export", experiment, "--model", folder]}[command]
+            "export": ["export", experiment, "--classifier", folder]}[command]
     refused(capsys, argv, [data_csv, experiment], r"some_dir\.svg is a folder")
     assert list(folder.iterdir()) == []
 
@@ -100,10 +100,10 @@ def test_when_the_second_export_fails_the_first_is_not_left_behind(capsys, tmp_p
         raise OSError(28, "No space left on device")
 
     monkeypatch.setattr(cli.export, "OUTPUTS", tuple(
-        row if row[0] != "--model" else row[:3] + (broken,) + row[4:]
+        row if row[0] != "--classifier" else row[:3] + (broken,) + row[4:]
         for row in cli.export.OUTPUTS))
     points, card = tmp_path / "p.csv", tmp_path / "m.json"
-    refused(capsys, ["export", experiment, "--points", points, "--model", card], [experiment],
+    refused(capsys, ["export", experiment, "--points", points, "--classifier", card], [experiment],
             r"No space left on device; no output was changed")
     assert not points.exists() and not card.exists()
     assert sorted(p.name for p in tmp_path.iterdir()) == ["experiment.json"]
@@ -115,9 +115,9 @@ def test_when_the_second_export_fails_an_older_first_output_keeps_its_content(
     points = tmp_path / "p.csv"
     points.write_text("older table\n")
     monkeypatch.setattr(cli.export, "OUTPUTS", tuple(
-        row if row[0] != "--model" else row[:3] + (_silent_writer,) + row[4:]
+        row if row[0] != "--classifier" else row[:3] + (_silent_writer,) + row[4:]
         for row in cli.export.OUTPUTS))
-    refused(capsys, ["export", experiment, "--points", points, "--model", tmp_path / "m.json"],
+    refused(capsys, ["export", experiment, "--points", points, "--classifier", tmp_path / "m.json"],
             [experiment, points], r"nothing was written to .*m\.json")
 
 
@@ -145,6 +145,6 @@ def test_render_writes_the_svg_it_reports(capsys, tmp_path, experiment):
 
 def test_export_writes_both_outputs_together(capsys, tmp_path, experiment):
     points, card = tmp_path / "p.csv", tmp_path / "m.json"
-    out, _ = succeeded(capsys, ["export", experiment, "--points", points, "--model", card])
+    out, _ = succeeded(capsys, ["export", experiment, "--points", points, "--classifier", card])
     assert points.read_text().startswith("point,line") and card.read_text().startswith("{")
     assert load_experiment(experiment).results is not None

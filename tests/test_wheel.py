@@ -9,6 +9,7 @@ this tree is not visible in it (path files of an added folder are not run).
 
 import json
 import os
+import shutil
 import subprocess
 import sys
 import sysconfig
@@ -22,10 +23,17 @@ ROOT = Path(__file__).resolve().parent.parent
 pytestmark = pytest.mark.timeout(600)
 
 
+SKIP = shutil.ignore_patterns(".venv", ".git", "build", "*.egg-info", "__pycache__",
+                              ".pytest_cache", ".hypothesis", "tests")
+
+
 @pytest.fixture(scope="module")
 def wheel(tmp_path_factory):
+    # built from a copy, so setuptools' build/ folder never lands in the checkout
+    source = tmp_path_factory.mktemp("source") / "slackline"
+    shutil.copytree(ROOT, source, ignore=SKIP, symlinks=True)
     out = tmp_path_factory.mktemp("wheel")
-    subprocess.run([sys.executable, "-m", "build", "--wheel", "--outdir", str(out), str(ROOT)],
+    subprocess.run([sys.executable, "-m", "build", "--wheel", "--outdir", str(out), str(source)],
                    check=True, capture_output=True, text=True)
     (path,) = out.glob("slackline-*.whl")
     return path

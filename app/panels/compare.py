@@ -6,8 +6,9 @@ come from solver.study.compare and the sentence from solver.study.narrative.
 
 from __future__ import annotations
 
-from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMessageBox, QPushButton,
-                               QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QHeaderView, QLabel, QMessageBox,
+                               QPushButton, QTableWidget, QTableWidgetItem, QVBoxLayout,
+                               QWidget)
 
 from solver.study import compare
 from solver.study import LEAVE_ONE_OUT, cross_validate, points_fingerprint
@@ -16,7 +17,10 @@ from solver.study import summary
 from solver import STATUS_TEXT
 
 from app.document.background import BackgroundTask
+from app.document.document import PINNED, RESULT
 from app.document.sweep_store import sweep_store
+from app.document.provenance import provenance
+from app.panels.points_table import SHORT_STATUS
 
 QUICK_FOLDS = 5
 
@@ -30,9 +34,8 @@ class ComparePanel(QWidget):
         self.task = None
         self._cv_cache = {}           # (points fingerprint, config) -> CVEstimate
         self._build()
-        for signal in (document.result_changed, document.pinned_changed,
-                       self.store.sweep_changed):
-            signal.connect(self.refresh)
+        document.changed.connect(self._document_changed)
+        self.store.sweep_changed.connect(self.refresh)
         self.refresh()
 
     def _build(self):
@@ -47,6 +50,7 @@ class ComparePanel(QWidget):
         buttons = QHBoxLayout()
         for button in (self.pin_button, self.clear_button, self.cv_button, self.report_button):
             buttons.addWidget(button)
+        buttons.addStretch(1)
         self.summary = QLabel("")
         self.summary.setWordWrap(True)
         self.table = QTableWidget(0, 4)
@@ -54,14 +58,21 @@ class ComparePanel(QWidget):
         self.support = QLabel("")
         self.support.setWordWrap(True)
         self.changes = QTableWidget(0, 6)
-        self.changes.setHorizontalHeaderLabels(["point", "class", "was", "now",
-                                                "slack before", "slack after"])
+        self.changes.setHorizontalHeaderLabels(["#", "class", "was", "now", "\u03be was",
+                                                "\u03be now"])
+        for table in (self.table, self.changes):
+            _compact(table)
+        # buttons and words across the top, the two tables side by side below: the
+        # study area is wide and short, and the tables need the width
+        tables = QHBoxLayout()
+        tables.addWidget(self.table)
+        tables.addWidget(self.changes, stretch=1)
         layout = QVBoxLayout(self)
+        layout.setContentsMargins(4, 4, 4, 4)
         layout.addLayout(buttons)
         layout.addWidget(self.summary)
-        layout.addWidget(self.table, stretch=1)
         layout.addWidget(self.support)
-        layout.addWidget(self.changes, stretch=2)
+        layout.addLayout(tables, stretch=1)
 
     # -- reading the document -------------------------------------------------
     def cv_for(self, result):
@@ -74,6 +85,10 @@ class ComparePanel(QWidget):
             if estimate is not None:
                 return estimate
         return self._cv_cache.get(_key(result))
+
+    def _document_changed(self, changes):
+        if changes & {RESULT, PINNED}:
+            self.refresh()
 
     def refresh(self):
         document = self.document
@@ -106,24 +121,34 @@ class ComparePanel(QWidget):
             for c, text in enumerate((q.name, f"{q.before:.4g}", f"{q.after:.4g}",
                                       f"{q.change:+.4g}")):
                 self.table.setItem(r, c, QTableWidgetItem(text))
+        # the figures table is as wide as its columns; the changes table takes the rest
+        header = self.table.horizontalHeader()
+        widths = [max(self.table.sizeHintForColumn(c), header.sectionSizeHint(c))
+                  for c in range(self.table.columnCount())]
+        self.table.setMinimumWidth(sum(widths) + 2 * self.table.frameWidth() + 4)
 
     def _fill_changes(self):
         comparison = self.comparison
         words = (f"Support vectors joined: {_points(comparison.joined)}; "
                  f"left: {_points(comparison.left)}.")
         if not comparison.same_points:
-            words += (f" The points differ from the pinned fit's: {len(comparison.added)} added,"
-                      f" {len(comparison.removed)} removed (matched by coordinates and label).")
+            words += (f" The points differ from the pinned fit's: {len(comparison.moved)} moved,"
+                      f" {len(comparison.added)} added, {len(comparison.removed)} removed "
+                      f"(matched by coordinates and label).")
         self.support.setText(words)
         self.changes.setRowCount(len(comparison.changes))
         for r, change in enumerate(comparison.changes):
             label = self.document.label_for(change.sign) if hasattr(
                 self.document, "label_for") else f"{change.sign:+d}"
             for c, text in enumerate((str(change.after_index), str(label),
-                                      STATUS_TEXT[change.status_before],
-                                      STATUS_TEXT[change.status_after],
+                                      SHORT_STATUS[change.status_before],
+                                      SHORT_STATUS[change.status_after],
                                       f"{change.slack_before:.3g}", f"{change.slack_after:.3g}")):
-                self.changes.setItem(r, c, QTableWidgetItem(text))
+                item = QTableWidgetItem(text)
+                if c in (2, 3):
+                    status = (change.status_before, change.status_after)[c - 2]
+                    item.setToolTip(STATUS_TEXT[status])
+                self.changes.setItem(r, c, item)
 
     # -- the quick CV estimate --------------------------------------------------
     def estimate_cv(self):
@@ -177,7 +202,19 @@ class ComparePanel(QWidget):
         if current is not None:
             sweep = self.store.current_for(current.X, current.y, current.config)
         return export_report(path, document.dataset(), current, pinned, sweep,
-                             self.cv_for(pinned), self.cv_for(current))
+                             self.cv_for(pinned), self.cv_for(current), note=document.note,
+                             edited=provenance(document).edited_since_import())
+
+
+def _compact(table):
+    """Rows of text height, no row numbers, columns as wide as their contents."""
+    table.verticalHeader().hide()
+    table.verticalHeader().setDefaultSectionSize(20)
+    table.setWordWrap(False)
+    header = table.horizontalHeader()
+    header.setSectionResizeMode(QHeaderView.ResizeToContents)
+    header.setStretchLastSection(True)
+    table.setEditTriggers(QTableWidget.NoEditTriggers)
 
 
 def _key(result):

@@ -6,6 +6,9 @@ from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT
 
+from app.document.document import METADATA, POINTS, RESULT, SELECTION
+from app.panels.units import length_suffix
+
 READING = {
     OUTSIDE: "outside the margin: alpha is 0, so this point has no say in where the "
              "boundary lies; moving it a little changes nothing",
@@ -34,9 +37,12 @@ class Inspector(QWidget):
         self.document = document
         self.values = {}
         form = QFormLayout(self)
+        # a narrow column: long values wrap under their title instead of being cut off
+        form.setRowWrapPolicy(QFormLayout.WrapLongRows)
         for key in FIELDS:
             label = QLabel("\u2014")
             label.setObjectName(f"inspector_{key}")
+            label.setWordWrap(True)
             self.values[key] = label
             form.addRow(TITLES[key], label)
         self.reading = QLabel()
@@ -44,13 +50,15 @@ class Inspector(QWidget):
         self.reading.setObjectName("inspector_reading")
         self.reading.setStyleSheet("font-style: italic;")
         form.addRow(self.reading)
-        for signal in (document.selection_changed, document.result_changed,
-                       document.points_changed):
-            signal.connect(self.refresh)
+        document.changed.connect(self._document_changed)
         self.refresh()
 
     def text(self, key: str) -> str:
         return self.values[key].text()
+
+    def _document_changed(self, changes):
+        if changes & {SELECTION, RESULT, POINTS, METADATA}:
+            self.refresh()
 
     def refresh(self):
         doc = self.document
@@ -72,8 +80,8 @@ class Inspector(QWidget):
             return
         self.values["decision"].setText(_g(result.decision[i]))
         self.values["margin"].setText(_g(result.functional_margin[i]))
-        self.values["distance"].setText(_g(result.distance[i]) + ("" if result.w is not None
-                                                                   else " (feature space)"))
+        unit = length_suffix(result, doc.units)
+        self.values["distance"].setText(_g(result.distance[i]) + unit)
         if result.projection is not None:
             self.values["projection"].setText(_g(result.projection[i]))
         self.values["alpha"].setText(f"{_g(result.alpha[i])}  (C\u1d62 = {_g(result.penalties[i])})")

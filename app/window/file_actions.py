@@ -123,7 +123,8 @@ class FileActions(QObject):
         return self.save_to(self.document.path)
 
     def save_as(self) -> bool:
-        name = Path(self.document.path).name if self.document.path else "untitled.experiment.json"
+        name = Path(self.document.path).name if self.document.path else \
+            f"{self._stem()}.experiment.json"
         path = self._ask_save("Save experiment as", EXPERIMENT_FILTER, name)
         return self.save_to(path) if path else False
 
@@ -157,7 +158,9 @@ class FileActions(QObject):
 
     # -- exports -------------------------------------------------------------------
     def _stem(self):
-        return Path(self.document.path).name.split(".")[0] if self.document.path else "untitled"
+        """The experiment's name, else the imported table's, else "untitled"."""
+        named = self.document.path or self.document.source
+        return Path(str(named)).name.split(".")[0] if named else "untitled"
 
     def export_picture(self, path=None) -> bool:
         path = path or self._ask_save("Export picture", "PNG picture (*.png);;SVG drawing (*.svg)",
@@ -194,14 +197,28 @@ class FileActions(QObject):
         from solver.files import write_points_csv
         return self._write(write_points_csv, path, result)
 
-    def export_model(self, path=None) -> bool:
-        result = self._fitted("the model card")
+    def export_classifier(self, path=None) -> bool:
+        result = self._fitted("the classifier")
         path = result is not None and (path or self._ask_save(
-            "Export model", "Model card (*.json)", f"{self._stem()}.model.json"))
+            "Export classifier", "Classifier file (*.json)", f"{self._stem()}.classifier.json"))
         if not path:
             return False
-        from solver.files import write_model_card
-        return self._write(write_model_card, path, result)
+        from solver.files import write_classifier
+        cross_validation = self._cross_validation(result)
+        return self._write(lambda p, data, fitted: write_classifier(p, data, fitted,
+                                                                    cross_validation),
+                           path, result)
+
+    def _cross_validation(self, result) -> dict | None:
+        """The sweep's cross-validated error at this C, when a sweep of these points exists."""
+        from app.document.sweep_store import sweep_store
+        sweep = sweep_store(self.document).current_for(result.X, result.y, result.config)
+        estimate = None if sweep is None or result.config.hard_margin else \
+            sweep.cv_at(result.config.C)
+        if estimate is None:
+            return None
+        return {"error": estimate.error, "standard_error": estimate.standard_error,
+                "folds": sweep.folds, "seed": sweep.seed}
 
     def _write(self, writer, path, result) -> bool:
         if not self.guard.allows(path, self.document.path, exporting=True):

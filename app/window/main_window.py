@@ -2,29 +2,25 @@
 
 from __future__ import annotations
 
-import importlib
 from pathlib import Path
 
 from PySide6.QtCore import QSettings, Qt
 from PySide6.QtGui import QAction, QKeySequence
-from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QMenu, QMessageBox,
-                               QProgressBar, QScrollArea)
+from PySide6.QtWidgets import QMainWindow, QMenu, QMessageBox
 
 from app.dialogs.about import show_about
+from app.dialogs.help_pages import READING, shortcuts_html, show_page
 from app.canvas import geometry
 from app.canvas.canvas import Canvas
-from app.panels.controls import Controls
-from app.document.document import Document
+from app.document.document import DIRTY, PATH, Document
 from app.window.file_actions import FileActions
-from app.panels.inspector import Inspector
-from app.panels.points_table import PointsTable
+from app.document.provenance import provenance
 from app.document.recovery import RecoveryWriter, pending_recovery
-from app.panels.summary import Summary
+from app.window.panels import PANELS
+from app.window.status import StatusReadouts
+from app.window.tooltips import apply_tooltips
+from app.window.workspace import Workspace
 from solver import kernels
-
-# panels written elsewhere; each docks itself in when its module is present
-OPTIONAL_PANELS = (("app.panels.sweep", "SweepPanel", "C sweep"),
-                   ("app.panels.compare", "ComparePanel", "Compare"))
 
 
 class MainWindow(QMainWindow):
@@ -34,76 +30,33 @@ class MainWindow(QMainWindow):
         self.last_import_dialog = None
         self.setObjectName("slackline_main_window")
         self.document = document or Document(self)
+        provenance(self.document)     # remembers the points as imported, before any edit
         self.canvas = Canvas(self.document)
         self.setCentralWidget(self.canvas)
-        self.controls = Controls(self.document, self.canvas)
-        self.summary = Summary(self.document)
-        self.inspector = Inspector(self.document)
-        self.points_table = PointsTable(self.document)
-        self.docks = {}
-        self._dock("Fit settings", self.controls, Qt.LeftDockWidgetArea, scroll=True)
-        self._dock("Summary", self.summary, Qt.LeftDockWidgetArea)
-        self._dock("Point", self.inspector, Qt.RightDockWidgetArea)
-        self._dock("Points", self.points_table, Qt.RightDockWidgetArea)
-        self.optional_panels = {}
-        for module_name, class_name, title in OPTIONAL_PANELS:
-            try:
-                panel_class = getattr(importlib.import_module(module_name), class_name)
-            except (ImportError, AttributeError):
-                continue
-            panel = panel_class(self.document)
-            self.optional_panels[class_name] = panel
-            dock = self._dock(title, panel, Qt.BottomDockWidgetArea)
-            dock.hide()
+        self.workspace = Workspace(self)
+        self.docks = self.workspace.docks
+        self.panels = {}
+        for spec in PANELS:      # declared once, in app/window/panels.py
+            panel = spec.build(self.document, self.canvas)
+            self.panels[spec.name] = panel
+            setattr(self, spec.name, panel)       # window.controls, window.summary, ...
+            self.workspace.place(spec, panel)
         self.files = FileActions(self, self.document, self.canvas)
         self.recovery = RecoveryWriter(self.document, self)
         self._build_status_bar()
         self._build_menus()
+        apply_tooltips(self)
         self.setAcceptDrops(True)
-        self.document.dirty_changed.connect(self._update_title)
-        self.document.path_changed.connect(self._update_title)
-        self.document.busy_changed.connect(self._busy)
-        self.document.solve_failed.connect(self._solve_failed)
-        self.document.result_changed.connect(self._result_changed)
+        self.document.changed.connect(self._document_changed)
         self.resize(1280, 800)
-        self.resizeDocks([self.docks["Fit settings"], self.docks["Point"]], [300, 330],
-                         Qt.Horizontal)
-        self.resizeDocks([self.docks["Fit settings"], self.docks["Summary"]], [380, 300],
-                         Qt.Vertical)
-        self.resizeDocks([self.docks["Point"], self.docks["Points"]], [300, 420], Qt.Vertical)
+        self.workspace.finish(self.inspector)
         self._restore_settings()
         self._update_title()
 
     # -- layout ------------------------------------------------------------
-    def _dock(self, title, widget, area, scroll=False):
-        dock = QDockWidget(title, self)
-        dock.setObjectName(f"dock_{title.lower().replace(' ', '_')}")
-        if scroll:
-            holder = QScrollArea()
-            holder.setWidget(widget)
-            holder.setWidgetResizable(True)
-            holder.setFrameShape(QScrollArea.NoFrame)
-            widget = holder
-        dock.setWidget(widget)
-        self.addDockWidget(area, dock)
-        self.docks[title] = dock
-        return dock
-
     def _build_status_bar(self):
-        self.busy_indicator = QProgressBar()
-        self.busy_indicator.setRange(0, 0)
-        self.busy_indicator.setMaximumSize(70, 12)
-        self.busy_indicator.setTextVisible(False)
-        self.busy_indicator.setToolTip("solving\u2026")
-        # keep its room when hidden: a status bar that changes height re-lays
-        # out the window and repaints the whole canvas during every solve
-        policy = self.busy_indicator.sizePolicy()
-        policy.setRetainSizeWhenHidden(True)
-        self.busy_indicator.setSizePolicy(policy)
-        self.busy_indicator.hide()
-        self.fit_state = QLabel()
-        self.statusBar().addPermanentWidget(self.fit_state)
-        self.statusBar().addPermanentWidget(self.busy_indicator)
+        self.status = StatusReadouts(self, self.document, self.canvas)
+        self.fit_state, self.busy_indicator = self.status.fit_state, self.status.busy_indicator
 
     def _action(self, menu, text, slot, shortcut=None, name=None):
         action = QAction(text, self)
@@ -130,7 +83,7 @@ class MainWindow(QMainWindow):
         file_menu.addSeparator()
         self._action(file_menu, "Export picture\u2026", lambda: files.export_picture(), "Ctrl+E")
         self._action(file_menu, "Export points table\u2026", lambda: files.export_points())
-        self._action(file_menu, "Export model\u2026", lambda: files.export_model())
+        self._action(file_menu, "Export classifier\u2026", lambda: files.export_classifier())
         file_menu.addSeparator()
         self._action(file_menu, "Quit", self.close, QKeySequence.Quit)
 
@@ -139,6 +92,11 @@ class MainWindow(QMainWindow):
         undo.setShortcut(QKeySequence.Undo)
         redo = doc.undo_stack.createRedoAction(self, "Redo")
         redo.setShortcut(QKeySequence.Redo)
+        # the stack keeps their text and state; a trigger goes through the document,
+        # so an undo and its clean-state change reach the views as one notice
+        for action, step in ((undo, doc.undo), (redo, doc.redo)):
+            action.triggered.disconnect()
+            action.triggered.connect(step)
         edit.addActions([undo, redo])
         self.undo_action, self.redo_action = undo, redo
         edit.addSeparator()
@@ -156,7 +114,7 @@ class MainWindow(QMainWindow):
         self._action(relabel, "Make \u22121", lambda: doc.relabel(doc.selection, -1),
                      name="relabel_negative")
         edit.addSeparator()
-        self._action(edit, "Pin current fit", doc.pin_current, "Ctrl+P")
+        self._action(edit, "Pin current fit", self.status.pin, "Ctrl+P")
         self._action(edit, "Clear pin", doc.clear_pin)
 
         view = bar.addMenu("&View")
@@ -172,7 +130,17 @@ class MainWindow(QMainWindow):
         for dock in self.docks.values():
             view.addAction(dock.toggleViewAction())
         help_menu = bar.addMenu("&Help")
+        self._action(help_menu, "Keyboard shortcuts", self.show_shortcuts, "F1")
+        self._action(help_menu, "Reading the canvas", self.show_reading)
+        help_menu.addSeparator()
         self._action(help_menu, "About Slackline", lambda: show_about(self))
+
+    def show_shortcuts(self):
+        self.help_page = show_page(self, "Keyboard shortcuts", shortcuts_html(self),
+                                   "help_shortcuts")
+
+    def show_reading(self):
+        self.help_page = show_page(self, "Reading the canvas", READING, "help_reading")
 
     def _fill_recent(self):
         self.recent_menu.clear()
@@ -182,25 +150,14 @@ class MainWindow(QMainWindow):
         self.recent_menu.setEnabled(bool(self.files.recent()))
 
     # -- document -> window ----------------------------------------------------------
+    def _document_changed(self, changes):
+        if changes & {DIRTY, PATH}:
+            self._update_title()
+
     def _update_title(self, *_):
         name = Path(self.document.path).name if self.document.path else "untitled"
         self.setWindowTitle(f"{name}[*] \u2014 Slackline")
         self.setWindowModified(self.document.is_dirty)
-
-    def _busy(self, busy: bool):
-        self.busy_indicator.setVisible(busy)
-
-    def _solve_failed(self, message: str):
-        self.statusBar().showMessage(message)
-
-    def _result_changed(self):
-        result = self.document.result
-        if result is not None and not self.document.result_is_stale:
-            self.statusBar().clearMessage()
-            self.fit_state.setText(f"{len(result.y)} points \u00b7 {result.config.kernel} \u00b7 "
-                                   f"{result.seconds * 1e3:.1f} ms")
-        elif self.document.result_is_stale:
-            self.fit_state.setText("stale fit")
 
     # -- session ------------------------------------------------------------------------
     def match_axes_to_data(self):
@@ -217,8 +174,12 @@ class MainWindow(QMainWindow):
         state = settings.value("window/state")
         if geometry is not None:
             self.restoreGeometry(geometry)
+        else:
+            self.workspace.fit_to_screen()
         if state is not None:
             self.restoreState(state)
+        else:
+            self.workspace.starting_sizes_when_shown()
         equal = settings.value("view/equal_axes", True)
         equal = equal if isinstance(equal, bool) else str(equal).lower() == "true"
         self.equal_axes_action.setChecked(equal)
@@ -263,7 +224,7 @@ class MainWindow(QMainWindow):
                            path=Path(original) if original else None, note=experiment.note)
         self.document.undo_stack.resetClean()  # recovered edits are unsaved edits
         self._update_title()
-        self.canvas.fit_view_to_data()
+        self.match_axes_to_data()     # as opening a file does
         return True
 
     def closeEvent(self, event):

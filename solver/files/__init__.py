@@ -10,7 +10,8 @@ from solver.files.dataset import Dataset, load_table, sign_mapping, split_unit
 from solver.files.experiment import (FORMAT_VERSION, Experiment, content_checksum,
                                      experiment_from_dict, experiment_to_dict, json_text,
                                      load_experiment, provenance, save_experiment)
-from solver.files.exports import model_card, points_table, write_model_card, write_points_csv
+from solver.files.classifier import classifier_document, write_classifier
+from solver.files.exports import points_table, write_points_csv
 from solver.files.tables import (EXCEL_SUFFIXES, TAB_SUFFIXES, TABLE_FILTER, TABLE_SUFFIXES,
                                  TablePreview, preview_table, read_table)
 
@@ -18,6 +19,7 @@ __all__ = [
     "bundled", "resource", "resource_json", "atomic_open", "atomic_write_text", "Dataset", "load_table", "sign_mapping",
     "split_unit", "FORMAT_VERSION", "Experiment", "content_checksum", "experiment_from_dict",
     "experiment_to_dict", "json_text", "load_experiment", "provenance",
-    "save_experiment", "model_card", "points_table", "write_model_card", "write_points_csv",
+    "save_experiment", "classifier_document", "write_classifier", "points_table",
+    "write_points_csv",
     "EXCEL_SUFFIXES", "TAB_SUFFIXES", "TABLE_FILTER", "TABLE_SUFFIXES", "TablePreview", "preview_table", "read_table",
 ]

@@ -19,7 +19,10 @@ overflow), for the RBF 1.
 
 The coordinates themselves stay within ``COORDINATE`` in absolute value, and
 each feature that varies varies by at least ``SPREAD`` (relative to its
-size) so that w = w_scaled / scale stays a float.
+size) so that w = w_scaled / scale stays a float.  For the RBF kernel the
+scaled points must not lie more than ``OFF_CENTRE`` times their spread from
+the origin: its squared distances are |a|^2 + |b|^2 - 2 a.b, which keeps
+about 16 - 2 log10(OFF_CENTRE) = 8 significant digits at that ratio.
 
 Where the numbers come from: measured on invented overlapping classes
 (60 points, all three kernels) against scikit-learn's SVC at tol=1e-10 and
@@ -41,6 +44,7 @@ COORDINATE = 1e100               # largest |x| of a point, in the user's units
 SPREAD = 1e-12                   # smallest (max - min) / max|x| of a feature that varies
 EFFECTIVE_C = (1e-9, 1e12)       # C_i * max k(u_i, u_i)
 KERNEL_VALUE = 1e100             # largest polynomial k(u, u)
+OFF_CENTRE = 1e4                 # RBF: largest max|u| / spread of the scaled points
 
 
 def check_coordinates(X: np.ndarray) -> None:
@@ -74,6 +78,8 @@ def kernel_scale(Xs: np.ndarray, config) -> float:
 def check_problem_scale(Xs: np.ndarray, config, penalties: np.ndarray) -> None:
     """InputError unless C_i * max k(u_i, u_i) lies in EFFECTIVE_C (hard margin: only the
     kernel value is checked)."""
+    if config.kernel == "rbf":
+        _check_rbf_distances(Xs)
     log_k = kernel_scale(Xs, config)
     if config.kernel == "polynomial" and log_k > math.log10(KERNEL_VALUE):
         raise InputError(f"the polynomial kernel reaches about 1e{log_k:.0f} on these points "
@@ -89,14 +95,29 @@ def check_problem_scale(Xs: np.ndarray, config, penalties: np.ndarray) -> None:
     largest = math.log10(float(finite.max())) + log_k
     smallest = math.log10(float(finite.min())) + log_k
     what = "C times the largest kernel value k(x, x) of the points"
+    polynomial = config.kernel == "polynomial"
     if largest > math.log10(high):
         raise InputError(f"{what} is about 1e{largest:.0f}, more than the solver resolves "
-                         f"({high:g}); scale the features (--scale zscore) or choose C at "
-                         f"most {_power(math.log10(high) - log_k)}")
+                         f"({high:g}); scale the features (--scale zscore)"
+                         f"{', lower gamma, offset or degree' if polynomial else ''} or choose "
+                         f"C at most {_power(math.log10(high) - log_k)}")
     if smallest < math.log10(low):
         raise InputError(f"{what} is about 1e{smallest:.0f}, less than the solver resolves "
-                         f"({low:g}); scale the features (--scale zscore) or choose C at "
+                         f"({low:g}); scale the features (--scale zscore)"
+                         f"{', raise gamma or offset' if polynomial else ''} or choose C at "
                          f"least {_power(math.log10(low) - log_k, up=True)}")
+
+
+def _check_rbf_distances(Xs: np.ndarray) -> None:
+    """|a - b|^2 is computed as |a|^2 + |b|^2 - 2 a.b (solver.kernels.rbf): far from the
+    origin compared with their spread, the points' distances lose every digit."""
+    size = float(np.max(np.abs(Xs)))
+    spread = float(np.max(Xs.max(axis=0) - Xs.min(axis=0)))
+    if size > OFF_CENTRE * spread:
+        raise InputError(f"the points lie about {size:.3g} from the origin but spread over "
+                         f"only {spread:.3g}, so their RBF distances would be rounding noise; "
+                         f"scale the features (--scale zscore or range) or subtract a common "
+                         f"value first")
 
 
 def check_figures(w, b, decision) -> None:

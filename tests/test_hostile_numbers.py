@@ -161,3 +161,20 @@ def test_a_non_finite_figure_becomes_null_with_a_field_that_says_why():
 def test_config_refuses_an_integer_beyond_any_float_without_overflowing():
     with pytest.raises(InputError, match="C must be a positive number"):
         FitConfig(C=10 ** 400)
+
+
+def test_rbf_points_far_from_the_origin_for_their_spread_are_refused(capsys, tmp_path):
+    path = scaled_csv(tmp_path, "far.csv", 1.0, shift=1e12)
+    refused(capsys, ["fit", path, "--positive", "pass", "--kernel", "rbf"], [path],
+            r"the points lie about 1e\+12 from the origin but spread over only .* rounding "
+            r"noise; scale the features")
+
+
+def test_rbf_points_off_centre_by_less_than_the_limit_match_the_centred_fit():
+    # the RBF kernel depends only on differences (translation invariance), so moving
+    # every point by the same vector changes nothing; derivation, no reference needed
+    data = pilot_batch()
+    X = np.asarray(data.X)
+    centred = fit(X, data.y, FitConfig(kernel="rbf", gamma=0.5))
+    moved = fit(X + 1e3, data.y, FitConfig(kernel="rbf", gamma=0.5))   # 1e3 / ~4 < 1e4
+    np.testing.assert_allclose(moved.decision, centred.decision, rtol=1e-5, atol=1e-5)

@@ -141,14 +141,19 @@ def test_an_experiment_with_C_1e300_is_refused_by_every_command(capsys, sealed, 
     refused(capsys, argv, [sealed], r"not a valid experiment file", problems=True)
 
 
-@pytest.mark.parametrize("command", ["check", "render"])
+@pytest.mark.parametrize("command", ["check", "export", "render"])
 def test_an_experiment_with_points_at_1e300_is_refused_with_the_limit(capsys, sealed, tmp_path,
                                                                      command):
     def far(document):
         document["points"][0]["x"] = [1e300, -1e300]
     resealed(sealed, far)
-    argv = {"check": ["check", sealed], "render": ["render", sealed, "-o", tmp_path / "r.png"]}
-    refused(capsys, argv[command], [sealed], r"coordinates reach 1e\+300")
+    argv = {"check": ["check", sealed], "render": ["render", sealed, "-o", tmp_path / "r.png"],
+            "export": ["export", sealed, "--points", tmp_path / "p.csv"]}
+    refused(capsys, argv[command], [sealed], r"not a valid experiment file", problems=True)
+    from cli.main import main
+    main([str(a) for a in argv[command]])
+    assert "/points/0/x: coordinates beyond 1e+100" in capsys.readouterr().err
+    assert not (tmp_path / "p.csv").exists()
 
 
 def test_a_non_finite_figure_becomes_null_with_a_field_that_says_why():

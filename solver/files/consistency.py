@@ -16,6 +16,11 @@ it was sealed), and ``check`` and ``export`` read the same problems, so
                  feature_weights one per column of the feature map (linear 2,
                  polynomial one per monomial), support_vectors and
                  coefficients one per support vector (rbf)
+    points       within the coordinate limit of solver.limits
+
+Stored decision values, slacks and alphas are not recomputed here: how far
+they are from a fresh fit is ``check``'s question (drift, exit 1), not a
+defect of the file.
 """
 
 from __future__ import annotations
@@ -23,6 +28,7 @@ from __future__ import annotations
 import math
 
 from solver.config import FitConfig
+from solver import limits
 from solver.errors import InputError
 from solver.files.schema_check import cap, short
 from solver.kernels import polynomial
@@ -44,12 +50,20 @@ def consistency_problems(document: dict) -> list[str]:
     except (InputError, TypeError) as exc:
         problems.append(f"/config: {exc}")
         return cap(problems)
+    problems += _coordinate_problems(document["points"])
     results, n = document["results"], len(document["points"])
     if results is not None:
         problems += _per_point_problems(results, n)
         problems += _norm_problems(results)
         problems += _model_problems(results, document["config"])
     return cap(problems)
+
+
+def _coordinate_problems(points) -> list[str]:
+    far = [i for i, p in enumerate(points) if max(abs(p["x"][0]), abs(p["x"][1])) >
+           limits.COORDINATE]
+    return [f"/points/{i}/x: coordinates beyond {limits.COORDINATE:g} in size, which no fit "
+            f"accepts; got {short(points[i]['x'])}" for i in far[:5]]
 
 
 def _label_problems(document) -> list[str]:

@@ -125,7 +125,8 @@ class ComparePanel(QWidget):
         header = self.table.horizontalHeader()
         widths = [max(self.table.sizeHintForColumn(c), header.sectionSizeHint(c))
                   for c in range(self.table.columnCount())]
-        self.table.setMinimumWidth(sum(widths) + 2 * self.table.frameWidth() + 4)
+        scroll = self.table.verticalScrollBar().sizeHint().width()
+        self.table.setMinimumWidth(sum(widths) + 2 * self.table.frameWidth() + scroll + 12)
 
     def _fill_changes(self):
         comparison = self.comparison

@@ -40,14 +40,14 @@ class Summary(QWidget):
         self.values = {}
         form = QFormLayout(self)
         form.setHorizontalSpacing(14)
+        form.setVerticalSpacing(3)       # twelve rows under the Fit settings at 800 px high
         form.setRowWrapPolicy(QFormLayout.WrapLongRows)
         for key, title, tip in ROWS:
             label = QLabel("\u2014")
             label.setToolTip(tip)
             label.setObjectName(f"summary_{key}")
             label.setTextInteractionFlags(label.textInteractionFlags() | _selectable())
-            label.setStyleSheet("font-family: monospace;" if key not in ("state", "units") else "")
-            label.setWordWrap(key in ("state", "units"))
+            label.setWordWrap(key in ("state", "units", "margin", "w"))
             self.values[key] = label
             if key == "state":
                 # the whole width, so a long reason (hard margin refused) wraps, never cut
@@ -78,7 +78,7 @@ class Summary(QWidget):
         if result.w is not None:
             set_("w", f"({number(result.w[0])}, {number(result.w[1])})")
         else:
-            set_("w", f"\u2014 ({result.config.kernel} kernel: no w in the plane)")
+            set_("w", "\u2014 (kernel fit: no w in the plane)")
         set_("margin", number(result.margin_width) + unit)
         set_("units", units_sentence(result, doc.units, doc.feature_names))
         set_("b", number(result.b))

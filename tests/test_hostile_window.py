@@ -117,3 +117,17 @@ def test_a_picture_export_writes_the_picture_and_nothing_else(window, qtbot, tmp
     assert (tmp_path / name).read_bytes().startswith(start)
     assert sorted(p.name for p in tmp_path.iterdir() if p.name != "settings") == [name]
     assert np.isfinite(window.document.result.b)
+
+
+@pytest.mark.parametrize("name", ["r.pdf", "r.png"])
+def test_a_report_into_a_missing_folder_fails_and_a_good_one_leaves_nothing_else(
+        qapp, tmp_path, name):
+    from app.canvas.report import export_report
+    from solver import SlacklineError, fit
+    data = gauge_points()
+    result = fit(data.X, data.y)
+    with pytest.raises(SlacklineError, match="does not exist"):
+        export_report(tmp_path / "missing" / name, data, result)
+    export_report(tmp_path / name, data, result)
+    assert (tmp_path / name).stat().st_size > 0
+    assert sorted(p.name for p in tmp_path.iterdir()) == [name]

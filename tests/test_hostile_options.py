@@ -109,3 +109,22 @@ def test_fuzzed_sweep_options_are_answered_cleanly(fuzz_data, option, value):
     status, _out, err = _run(["sweep", fuzz_data, "--positive", "pass", "--steps", "2",
                               "--folds", "2", option, value])
     _answered_cleanly(status, err, before, fuzz_data)
+
+
+@pytest.fixture(scope="module")
+def fuzz_experiment(tmp_path_factory):
+    from hostile_cli import write_experiment
+    return write_experiment(tmp_path_factory.mktemp("fuzz_render"))
+
+
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(size=st.one_of(st.text(max_size=20), st.sampled_from(
+           ["0x0", "99x100", "8001x100", "100x100", "1e3x1e3", "-5x-5", "9" * 400 + "x1"])),
+       name=st.sampled_from(["r.png", "r.svg", "r.gif", "r", ".svg", "r.json"]))
+def test_fuzzed_render_sizes_and_names_are_answered_cleanly(fuzz_experiment, size, name):
+    out = fuzz_experiment.parent / name
+    before = fuzz_experiment.read_bytes()
+    status, _out, err = _run(["render", fuzz_experiment, "-o", out, "--size", size])
+    _answered_cleanly(status, err, before, fuzz_experiment)
+    assert (status == 0) == out.exists()
+    out.unlink(missing_ok=True)

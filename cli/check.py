@@ -13,7 +13,6 @@ solves), 2 when the file is invalid.
 
 from __future__ import annotations
 
-import json
 import sys
 from dataclasses import asdict
 
@@ -22,6 +21,7 @@ import numpy as np
 from solver import ConvergenceError, NotSeparableError, fit
 from solver.files import load_experiment, provenance
 from solver.study import agreement
+from cli.outputs import print_json
 
 
 def add_arguments(parser) -> None:
@@ -47,11 +47,9 @@ def run(args) -> int:
     drifted = [c for c in comparisons if not c.agrees]
     changed = version_changes(experiment.written, provenance())
     if args.json:
-        json.dump({"file": str(args.experiment), "agrees": not drifted,
-                   "software_changes": changed,
-                   "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]},
-                  sys.stdout)
-        sys.stdout.write("\n")
+        print_json({"file": str(args.experiment), "agrees": not drifted,
+                    "software_changes": changed,
+                    "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]})
     else:
         print(report_text(args.experiment, len(dataset), config, comparisons))
         if changed:

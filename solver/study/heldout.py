@@ -1,0 +1,161 @@
+"""A fitted classifier applied to rows it was not fitted on.
+
+Per row: the decision value f(x), the predicted label as the experiment
+writes it (f >= 0 is the positive class, as everywhere in Slackline), the
+distance to the boundary and whether the row falls inside the margin band
+(|f| < 1, a "close call").  With true labels: the error and the confusion
+counts, named by the experiment's labels.
+
+Distance: |f(x)| / |w|.  For a linear kernel w is in the features' original
+units, so the distance is in the data's units.  For the polynomial and RBF
+kernels |w| is the norm of the weight vector in the kernel's feature space,
+so the distance is measured there, not in the plane of the data.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from solver.errors import InputError
+from solver.model import DecisionModel
+from solver.result import _frozen
+
+DATA_UNITS = "data units"
+FEATURE_SPACE = "feature space"
+
+
+@dataclass(frozen=True, eq=False)
+class Classifier:
+    """What scoring needs of a fit: f anywhere, |w| and the kernel's name."""
+
+    model: DecisionModel
+    weight_norm: float          # |w|: original units (linear) or feature space
+    kernel: str
+
+    @classmethod
+    def from_result(cls, result) -> "Classifier":
+        return cls(model=result.model, weight_norm=float(result.weight_norm),
+                   kernel=result.config.kernel)
+
+    @classmethod
+    def from_figures(cls, figures: dict) -> "Classifier":
+        """From the figures an experiment file stores (``Experiment.results``)."""
+        m = figures["model"]
+
+        def array(key):
+            return None if m[key] is None else np.asarray(m[key], dtype=float)
+
+        vectors = array("support_vectors")
+        model = DecisionModel(m["kernel"], float(m["gamma"]), int(m["degree"]),
+                              float(m["offset"]), array("shift"), array("scale"), float(m["b"]),
+                              feature_weights=array("feature_weights"),
+                              support_vectors=None if vectors is None else vectors.reshape(-1, 2),
+                              coefficients=array("coefficients"))
+        return cls(model=model, weight_norm=float(figures["weight_norm"]), kernel=m["kernel"])
+
+    def decision_function(self, points) -> np.ndarray:
+        return self.model.decision_function(points)
+
+
+@dataclass(frozen=True, eq=False)
+class Scores:
+    """What the classifier says about each row (arrays in row order, read-only)."""
+
+    decision: np.ndarray        # f(x)
+    signs: np.ndarray           # predicted +1 / -1
+    labels: tuple               # predicted label as written in the experiment
+    distance: np.ndarray        # |f(x)| / |w|, >= 0
+    in_band: np.ndarray         # |f(x)| < 1: inside the margin band, a close call
+    distance_space: str         # DATA_UNITS (linear) or FEATURE_SPACE (kernels)
+
+    def __post_init__(self):
+        for name in ("decision", "signs", "distance", "in_band"):
+            object.__setattr__(self, name, _frozen(getattr(self, name)))
+
+    def __len__(self) -> int:
+        return len(self.decision)
+
+    @property
+    def close_calls(self) -> int:
+        return int(np.count_nonzero(self.in_band))
+
+
+@dataclass(frozen=True)
+class Confusion:
+    """Confusion counts with the experiment's own label names.
+
+    A "positive" is a row the classifier puts in the positive class (+1);
+    it is true when the row's own label is the positive label too.
+    """
+
+    positive_label: object
+    negative_label: object
+    true_positive: int
+    false_positive: int
+    true_negative: int
+    false_negative: int
+
+    @property
+    def rows(self) -> int:
+        return self.true_positive + self.false_positive + self.true_negative + self.false_negative
+
+    @property
+    def error(self) -> float:
+        """Fraction of rows whose predicted label differs from their own."""
+        return (self.false_positive + self.false_negative) / self.rows
+
+    def to_dict(self) -> dict:
+        return {"positive_label": self.positive_label, "negative_label": self.negative_label,
+                "true_positive": self.true_positive, "false_positive": self.false_positive,
+                "true_negative": self.true_negative, "false_negative": self.false_negative}
+
+    def lines(self) -> list[str]:
+        """The four counts in words: 'true positive (pass predicted pass): 12'."""
+        pos, neg = self.positive_label, self.negative_label
+        return [f"true positive ({pos} predicted {pos}): {self.true_positive}",
+                f"false positive ({neg} predicted {pos}): {self.false_positive}",
+                f"true negative ({neg} predicted {neg}): {self.true_negative}",
+                f"false negative ({pos} predicted {neg}): {self.false_negative}"]
+
+
+def score(fitted, points, label_mapping: dict) -> Scores:
+    """Apply a fit (a FitResult or a Classifier) to ``points`` (n x 2, original units)."""
+    classifier = fitted if isinstance(fitted, Classifier) else Classifier.from_result(fitted)
+    points = np.asarray(points, dtype=float).reshape(-1, 2)
+    by_sign = _labels_by_sign(label_mapping)
+    decision = classifier.decision_function(points) if len(points) else np.zeros(0)
+    signs = np.where(decision >= 0, 1, -1)
+    return Scores(decision=decision, signs=signs,
+                  labels=tuple(by_sign[int(s)] for s in signs),
+                  distance=np.abs(decision) / classifier.weight_norm,
+                  in_band=np.abs(decision) < 1.0,
+                  distance_space=DATA_UNITS if classifier.kernel == "linear"
+                  else FEATURE_SPACE)
+
+
+def confusion(true_signs, predicted_signs, label_mapping: dict) -> Confusion:
+    """Confusion counts of predicted against true signs (+1 / -1)."""
+    true_signs = np.asarray(true_signs).reshape(-1)
+    predicted_signs = np.asarray(predicted_signs).reshape(-1)
+    if true_signs.shape != predicted_signs.shape or not len(true_signs):
+        raise InputError(f"confusion counts need one true label per prediction and at least "
+                         f"one row; got {true_signs.size} labels, {predicted_signs.size} "
+                         "predictions")
+    by_sign = _labels_by_sign(label_mapping)
+
+    def count(truth, predicted):
+        return int(np.count_nonzero((true_signs == truth) & (predicted_signs == predicted)))
+
+    return Confusion(positive_label=by_sign[1], negative_label=by_sign[-1],
+                     true_positive=count(1, 1), false_positive=count(-1, 1),
+                     true_negative=count(-1, -1), false_negative=count(1, -1))
+
+
+def _labels_by_sign(label_mapping: dict) -> dict:
+    by_sign = {int(sign): label for label, sign in label_mapping.items()}
+    if sorted(by_sign) != [-1, 1]:
+        raise InputError(f"the label mapping must name one label for +1 and one for -1; "
+                         f"got {label_mapping!r}")
+    return by_sign

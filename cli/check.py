@@ -15,6 +15,8 @@ options, and the new figures are compared with the stored ones:
     primal, dual        1e-7 * max(1, |stored objective|)
     status              identical for every point
     support vectors     the identical set of point indices
+    held-out decision   as decision values, over the stored held-out points (if any)
+    held-out confusion  identical counts
 
 Exit status: 0 when everything agrees, 1 when something drifts (or there
 are no stored results to compare, or the stored configuration no longer
@@ -30,7 +32,9 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from solver.errors import ConvergenceError, NotSeparableError
-from solver.files.experiment import load_experiment, provenance, results_to_dict
+from solver.files.experiment import _key, load_experiment, provenance, results_to_dict
+from solver.files.heldout_points import heldout_from_section
+from solver.study.heldout import confusion
 from solver.fit import fit
 
 RELATIVE = 1e-6
@@ -69,6 +73,8 @@ def run(args) -> int:
         return 1
     fresh = results_to_dict(result)
     comparisons = compare(stored, fresh, np.asarray(result.penalties))
+    if experiment.heldout is not None:
+        comparisons += heldout_comparisons(experiment.heldout, dataset.label_mapping, result)
     drifted = [c for c in comparisons if not c.agrees]
     changed = version_changes(experiment.written, provenance())
     if args.json:
@@ -126,6 +132,20 @@ def compare(stored: dict, fresh: dict, penalties: np.ndarray) -> list[Comparison
     return comparisons
 
 
+def heldout_comparisons(section: dict, label_mapping: dict, result) -> list[Comparison]:
+    """The stored held-out decision values and counts against those of the fresh fit."""
+    points = heldout_from_section(section, label_mapping, key=_key)
+    decision = result.decision_function(points.X)
+    f_scale = max(1.0, float(np.max(np.abs(section["decision"]), initial=0.0)))
+    counts = confusion(points.signs, np.where(decision >= 0, 1, -1), label_mapping).to_dict()
+    differ = [k for k in ("true_positive", "false_positive", "true_negative", "false_negative")
+              if counts[k] != section["confusion"][k]]
+    detail = "; ".join(f"{k} {section['confusion'][k]} -> {counts[k]}" for k in differ)
+    return [Comparison("held-out decision", _largest(section["decision"], decision),
+                       RELATIVE * f_scale),
+            Comparison("held-out confusion", len(differ), 0, detail)]
+
+
 def version_changes(written: dict, now: dict) -> dict:
     """Software whose version differs from the one that wrote the file: name -> (then, now)."""
     return {key: (written.get(key), now[key]) for key in ("slackline", "python", "numpy", "cvxopt")
@@ -141,7 +161,7 @@ def report_text(name, n_points, config, comparisons) -> str:
              f"{verdict}",
              f"  {'quantity':<18}{'largest difference':>20}{'allowed':>12}"]
     for c in comparisons:
-        if c.quantity in ("status", "support vectors"):
+        if c.quantity in ("status", "support vectors", "held-out confusion"):
             shown = f"{int(c.difference)} differ" if c.difference else c.detail or "identical"
             lines.append(f"  {c.quantity:<18}{shown:>20}{'none':>12}"
                          + ("" if c.agrees else "   <- " + c.detail))

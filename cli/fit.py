@@ -8,6 +8,7 @@ import sys
 from solver.fit import fit
 from solver.result import STATUS_TEXT, STATUSES, result_to_dict
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
+from cli.fit_evidence import add_evidence_arguments, evidence_for
 
 
 def add_arguments(parser) -> None:
@@ -17,6 +18,7 @@ def add_arguments(parser) -> None:
                         help="print exactly one JSON object on stdout instead of a summary")
     parser.add_argument("--save", metavar="EXPERIMENT.json",
                         help="also write a reproducible experiment file")
+    add_evidence_arguments(parser)
 
 
 def run(args) -> int:
@@ -24,17 +26,19 @@ def run(args) -> int:
     config = config_from_args(args, dataset)
     print(f"labels: {dataset.mapping_text()}", file=sys.stderr)
     result = fit(dataset.X, dataset.y, config)
+    evidence = evidence_for(args, dataset, result)
     if args.save:
         from solver.files.experiment import save_experiment  # the file layer
-        save_experiment(args.save, dataset, result)
+        save_experiment(args.save, dataset, result, heldout=evidence.heldout_section())
     if args.json:
         data = result_to_dict(result)
         data["features"] = list(dataset.feature_names)
         data["label_mapping"] = {str(k): v for k, v in dataset.label_mapping.items()}
+        data.update(evidence.to_json())
         json.dump(data, sys.stdout)
         sys.stdout.write("\n")
     else:
-        print(summary_text(result, dataset))
+        print(summary_text(result, dataset) + evidence.text())
     return 0
 
 

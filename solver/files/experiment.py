@@ -24,6 +24,7 @@ import numpy as np
 from solver.files.atomic import atomic_write_text
 from solver.config import FitConfig
 from solver.files.dataset import Dataset
+from solver.files.heldout_points import section_problems
 from solver.errors import FileFormatError, InputError
 from solver.files.migration import CURRENT_VERSION, migrate
 from solver.files.schema_check import cap, non_finite_paths, schema_problems, short
@@ -41,6 +42,7 @@ class Experiment:
     written: dict                # provenance: at, slackline, python, numpy, cvxopt, platform
     format_version: int = FORMAT_VERSION   # as found in the file, before migration
     checksum: str | None = None
+    heldout: dict | None = None  # the stored held-out section (heldout_points), if any
 
 
 # -- writing -------------------------------------------------------------------
@@ -82,7 +84,8 @@ def results_to_dict(result) -> dict:
     }
 
 
-def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=None) -> dict:
+def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=None,
+                       heldout=None) -> dict:
     """The complete document (checksum included) for ``dataset`` fitted with ``config``."""
     if not isinstance(dataset, Dataset):
         raise InputError(f"dataset must be a Dataset; got {type(dataset).__name__}")
@@ -126,15 +129,18 @@ def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=No
         "config": config.to_dict(),
         "results": None if result is None else results_to_dict(result),
     }
+    if heldout is not None:          # a heldout_points.heldout_section(...)
+        document["heldout"] = heldout
     document["checksum"] = {"algorithm": "sha256", "value": content_checksum(document)}
     return document
 
 
-def save_experiment(path, dataset: Dataset, result, note=None, config=None) -> Path:
+def save_experiment(path, dataset: Dataset, result, note=None, config=None,
+                    heldout=None) -> Path:
     """Write ``dataset`` with ``result`` (or, unfitted, with ``config``) to ``path`` atomically."""
     if config is None:
         config = result.config if result is not None else FitConfig()
-    document = experiment_to_dict(dataset, config, result, note=note)
+    document = experiment_to_dict(dataset, config, result, note=note, heldout=heldout)
     atomic_write_text(path, render(document))
     return Path(path)
 
@@ -234,7 +240,8 @@ def _build(document: dict, found_version) -> Experiment:
                       written=dict(document["written"]),
                       format_version=found_version if isinstance(found_version, int)
                       else FORMAT_VERSION,
-                      checksum=document["checksum"]["value"])
+                      checksum=document["checksum"]["value"],
+                      heldout=document.get("heldout"))
 
 
 def _consistency_problems(document: dict) -> list[str]:
@@ -267,6 +274,7 @@ def _consistency_problems(document: dict) -> list[str]:
             if index >= n:
                 problems.append(f"/results/support/{j}: point index {index} is out of range "
                                 f"(there are {n} points, numbered from 0)")
+    problems += section_problems(document.get("heldout"), known, key=_key)
     return cap(problems)
 
 

@@ -31,11 +31,10 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 
-from solver.errors import ConvergenceError, NotSeparableError
-from solver.files.experiment import _key, load_experiment, provenance, results_to_dict
-from solver.files.heldout_points import heldout_from_section
-from solver.study.heldout import confusion
-from solver.fit import fit
+from solver import ConvergenceError, NotSeparableError
+from solver.files import heldout_from_section, load_experiment, provenance, results_to_dict
+from solver.study import confusion
+from solver import fit
 
 RELATIVE = 1e-6
 OBJECTIVE_RELATIVE = 1e-7
@@ -134,7 +133,7 @@ def compare(stored: dict, fresh: dict, penalties: np.ndarray) -> list[Comparison
 
 def heldout_comparisons(section: dict, label_mapping: dict, result) -> list[Comparison]:
     """The stored held-out decision values and counts against those of the fresh fit."""
-    points = heldout_from_section(section, label_mapping, key=_key)
+    points = heldout_from_section(section, label_mapping)
     decision = result.decision_function(points.X)
     f_scale = max(1.0, float(np.max(np.abs(section["decision"]), initial=0.0)))
     counts = confusion(points.signs, np.where(decision >= 0, 1, -1), label_mapping).to_dict()

@@ -5,9 +5,11 @@ from __future__ import annotations
 import argparse
 import sys
 
-from solver.config import FitConfig
-from solver.files.dataset import Dataset, load_table
-from solver.errors import InputError
+from solver import kernels, scaling
+from solver import FitConfig
+from solver import PARAMETERS
+from solver.files import Dataset, load_table
+from solver import InputError
 
 
 def add_data_arguments(parser: argparse.ArgumentParser) -> None:
@@ -22,22 +24,62 @@ def add_data_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def add_config_arguments(parser: argparse.ArgumentParser) -> None:
+    """C, kernel, the kernel parameters, class weights and scaling, as the
+    kernel registry and solver.parameters declare them."""
     margin = parser.add_mutually_exclusive_group()
-    margin.add_argument("--C", dest="C", type=_number("C"), default=1.0,
-                        help="regularisation strength, a positive number (default 1)")
+    margin.add_argument("--C", dest="C", type=_number("C"), default=PARAMETERS["C"].default,
+                        help=f"{PARAMETERS['C'].help} (default {PARAMETERS['C'].default:g})")
     margin.add_argument("--hard", action="store_true",
                         help="hard margin (C = infinity): no slack allowed")
-    parser.add_argument("--kernel", choices=("linear", "polynomial", "rbf"), default="linear")
-    parser.add_argument("--gamma", type=_number("gamma"), default=0.5,
-                        help="kernel width for rbf and poly (default 0.5)")
-    parser.add_argument("--degree", type=_number("degree"), default=3,
-                        help="polynomial degree (default 3)")
-    parser.add_argument("--offset", type=_number("offset"), default=1.0,
-                        help="polynomial offset, >= 0 (default 1)")
+    parser.add_argument("--kernel", type=_choice("kernel", kernels.names), default="linear",
+                        metavar="|".join(kernels.names()),
+                        help="; ".join(f"{k.name}: {k.help}" for k in kernels.REGISTRY.values())
+                        + " (default linear)")
+    for name in kernels.parameter_names():
+        spec = PARAMETERS[name]
+        users = ", ".join(k.name for k in kernels.REGISTRY.values() if name in k.parameters)
+        parser.add_argument(f"--{name}", type=_number(name), default=spec.default,
+                            help=f"{spec.help} [{users}] (default {spec.default:g})")
+    for old, new in OLD_OPTIONS.items():
+        parser.add_argument(old, nargs="?", action=_Renamed, new=new, help=argparse.SUPPRESS)
     parser.add_argument("--weight", action="append", default=[], metavar="LABEL=FACTOR",
                         help="class weight: multiply C for points of LABEL (repeatable)")
-    parser.add_argument("--scale", choices=("none", "zscore", "range"), default="none",
-                        help="feature scaling before the fit (default none)")
+    parser.add_argument("--scale", type=_choice("scale", lambda: tuple(scaling.METHODS)),
+                        default="none", metavar="|".join(scaling.METHODS),
+                        help="feature scaling before the fit: "
+                             + "; ".join(f"{k}: {v}" for k, v in scaling.METHODS.items())
+                             + " (default none)")
+
+
+# spellings of other tools that users may bring along -> ours
+OLD_SPELLINGS = {"kernel": {"poly": "polynomial"}, "scale": {"standard": "zscore",
+                                                             "minmax": "range"}}
+
+
+OLD_OPTIONS = {"--coef0": "--offset"}
+
+
+class _Renamed(argparse.Action):
+    """An option of other tools' spelling: refused with the name it has here."""
+
+    def __init__(self, *args, new: str, **kwargs):
+        self.new = new
+        super().__init__(*args, **kwargs)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        parser.error(f"{option_string} is called {self.new} here")
+
+
+def _choice(option: str, allowed):
+    def parse(text):
+        if text in allowed():
+            return text
+        hint = OLD_SPELLINGS.get(option, {}).get(text)
+        if hint:
+            raise argparse.ArgumentTypeError(f"--{option} {text!r} is spelled {hint!r} here")
+        raise argparse.ArgumentTypeError(f"--{option} must be one of "
+                                         f"{', '.join(allowed())}; got {text!r}")
+    return parse
 
 
 def _number(name):
@@ -81,10 +123,13 @@ def config_from_args(args, dataset: Dataset) -> FitConfig:
             weights[sign] = float(factor)
         except ValueError:
             raise InputError(f"the class weight in --weight {item!r} must be a number") from None
-    degree = int(args.degree) if float(args.degree).is_integer() else args.degree
-    return FitConfig(C=args.C, hard_margin=args.hard, kernel=args.kernel, gamma=args.gamma,
-                     degree=degree, offset=args.offset, weight_positive=weights[1],
-                     weight_negative=weights[-1], scaling=args.scale)
+    settings = {name: getattr(args, name) for name in kernels.parameter_names()}
+    for name, value in settings.items():
+        if PARAMETERS[name].kind is int and float(value).is_integer():
+            settings[name] = int(value)
+    return FitConfig(C=args.C, hard_margin=args.hard, kernel=args.kernel, **settings,
+                     weight_positive=weights[1], weight_negative=weights[-1],
+                     scaling=args.scale)
 
 
 def _same(value, text) -> bool:

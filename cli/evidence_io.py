@@ -9,7 +9,7 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-from solver.errors import InputError
+from solver import InputError
 
 CAUTION = ("caution: a boundary tuned by eye on training points is not a validated model; "
            "validate on held-out data; where it decides about people, parts or patients, "

@@ -9,10 +9,10 @@ from __future__ import annotations
 
 import sys
 
-from solver.errors import InputError
-from solver.files.experiment import load_experiment
-from solver.files.exports import write_model_card, write_points_csv
-from solver.fit import fit
+from solver import InputError
+from solver.files import load_experiment
+from solver.files import write_model_card, write_points_csv
+from solver import fit
 
 
 def add_arguments(parser) -> None:

@@ -5,8 +5,8 @@ from __future__ import annotations
 import json
 import sys
 
-from solver.fit import fit
-from solver.result import STATUS_TEXT, STATUSES, result_to_dict
+from solver import fit
+from solver import STATUS_TEXT, STATUSES, result_to_dict
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 from cli.fit_evidence import add_evidence_arguments, evidence_for
 
@@ -28,7 +28,7 @@ def run(args) -> int:
     result = fit(dataset.X, dataset.y, config)
     evidence = evidence_for(args, dataset, result)
     if args.save:
-        from solver.files.experiment import save_experiment  # the file layer
+        from solver.files import save_experiment  # the file layer
         save_experiment(args.save, dataset, result, heldout=evidence.heldout_section())
     if args.json:
         data = result_to_dict(result)

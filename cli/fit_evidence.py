@@ -12,9 +12,8 @@ from __future__ import annotations
 import sys
 from dataclasses import dataclass
 
-from solver.files.heldout_points import HeldOutPoints, heldout_section
-from solver.files.new_rows import read_new_rows
-from solver.study.heldout import Confusion, Scores, confusion, score
+from solver.files import HeldOutPoints, heldout_section, read_new_rows
+from solver.study import Confusion, Scores, confusion, score
 from cli.evidence_io import CAUTION
 
 

@@ -10,7 +10,7 @@ import argparse
 import importlib
 import sys
 
-from solver.errors import SlacklineError
+from solver import SlacklineError
 
 # subcommand -> (module, one-line help); each module has add_arguments(parser)
 # and run(args) -> exit status.
@@ -33,10 +33,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name, (module_name, help_text) in COMMANDS.items():
         command_parser = sub.add_parser(name, help=help_text, description=help_text)
-        try:
-            module = importlib.import_module(module_name)
-        except ImportError:
-            continue  # a command still under construction
+        module = importlib.import_module(module_name)   # a broken command fails loudly
         module.add_arguments(command_parser)
         command_parser.set_defaults(run=module.run)
     return parser
@@ -55,7 +52,8 @@ def main(argv=None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     if getattr(args, "run", None) is None:
-        parser.error(f"the command {args.command!r} is not available in this build")
+        parser.print_help(sys.stderr)
+        return 2
     try:
         return int(args.run(args) or 0)
     except SlacklineError as exc:

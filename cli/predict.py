@@ -13,12 +13,9 @@ import io
 import json
 import sys
 
-from solver.errors import InputError
-from solver.files.atomic import atomic_write_text
-from solver.files.experiment import load_experiment
-from solver.files.exports import neutralise
-from solver.files.new_rows import read_new_rows
-from solver.study.heldout import Classifier, confusion, score
+from solver import InputError
+from solver.files import atomic_write_text, load_experiment, neutralise, read_new_rows
+from solver.study import Classifier, confusion, score
 from cli.evidence_io import CAUTION, refuse_overwriting_inputs
 
 

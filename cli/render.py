@@ -6,7 +6,7 @@ import sys
 from pathlib import Path
 
 from app.canvas.figure import DEFAULT_SIZE, FORMATS, parse_size, save_figure  # no Qt at import
-from solver.errors import InputError
+from solver import InputError
 
 
 
@@ -20,8 +20,8 @@ def add_arguments(parser) -> None:
 
 
 def run(args) -> int:
-    from solver.files.experiment import load_experiment
-    from solver.fit import fit
+    from solver.files import load_experiment
+    from solver import fit
 
     width, height = parse_size(args.size)
     if Path(args.output).suffix.lower() not in FORMATS:

@@ -11,9 +11,9 @@ import json
 import math
 import sys
 
-from solver.study.crossval import LEAVE_ONE_OUT
-from solver.errors import InputError
-from solver.study.sweep import DEFAULT_FROM, DEFAULT_STEPS, DEFAULT_TO, SweepSettings, run_sweep
+from solver.study import LEAVE_ONE_OUT
+from solver import InputError
+from solver.study import DEFAULT_FROM, DEFAULT_STEPS, DEFAULT_TO, SweepSettings, run_sweep
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 
 

@@ -4,17 +4,21 @@
     result = fit(X, y, FitConfig(C=1.0))
 """
 
+from solver import kernels
 from solver.config import FitConfig, SolverOptions
 from solver.errors import (ConvergenceError, FileFormatError, InputError, NotSeparableError,
-                     SlacklineError)
+                           SlacklineError)
 from solver.fit import fit, validate_points
 from solver.model import DecisionModel
-from solver.result import STATUS_TEXT, STATUSES, FitResult, KKTResiduals
+from solver.parameters import PARAMETERS, Parameter
+from solver.result import (INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, STATUSES,
+                           FitResult, KKTResiduals, result_to_dict)
 
 __version__ = "0.1.0"
 
 __all__ = [
     "fit", "validate_points", "FitConfig", "SolverOptions", "FitResult", "KKTResiduals",
-    "DecisionModel", "STATUSES", "STATUS_TEXT", "SlacklineError", "InputError",
+    "DecisionModel", "STATUSES", "STATUS_TEXT", "INSIDE", "MISCLASSIFIED", "ON_MARGIN",
+    "OUTSIDE", "result_to_dict", "kernels", "PARAMETERS", "Parameter", "SlacklineError", "InputError",
     "NotSeparableError", "ConvergenceError", "FileFormatError", "__version__",
 ]

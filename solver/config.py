@@ -8,10 +8,10 @@ from __future__ import annotations
 import math
 from dataclasses import asdict, dataclass, field, replace
 
+from solver import kernels
 from solver.errors import InputError
-
-KERNELS = ("linear", "polynomial", "rbf")
-SCALINGS = ("none", "zscore", "range")
+from solver.parameters import PARAMETERS
+from solver.scaling import METHODS as SCALINGS
 
 
 @dataclass(frozen=True)
@@ -33,14 +33,18 @@ class FitConfig:
 
     C            regularisation strength, a positive float; ignored when
                  ``hard_margin`` is set (C = infinity: no slack allowed).
-    kernel       "linear", "polynomial" (gamma * x.z + offset) ** degree, or
-                 "rbf" exp(-gamma |x - z|^2).
+    kernel       a name in the kernel registry (solver.kernels): "linear",
+                 "polynomial" (gamma * x.z + offset) ** degree, or "rbf"
+                 exp(-gamma |x - z|^2).
     weight_positive / weight_negative
                  class weights: the penalty of point i is C times the weight
                  of its class.
     scaling      "none", "zscore" (zero mean, unit variance) or "range"
                  (each feature onto [0, 1]); w and b are always reported in
                  the original units.
+
+    Ranges, defaults and help texts of the numeric settings are declared once,
+    in solver.parameters.
     """
 
     C: float = 1.0
@@ -58,9 +62,14 @@ class FitConfig:
         _check_config(self)
 
     @property
+    def kernel_spec(self) -> kernels.Kernel:
+        """The registry's description of this config's kernel."""
+        return kernels.get(self.kernel)
+
+    @property
     def uses_feature_map(self) -> bool:
-        """Linear and polynomial fits run in the primal on explicit features."""
-        return self.kernel in ("linear", "polynomial")
+        """Kernels with an exact feature map (linear, polynomial) run in the primal."""
+        return self.kernel_spec.has_feature_map
 
     def penalty(self, sign: int) -> float:
         """C_i for a point of class ``sign`` (+1 or -1); inf for hard margin."""
@@ -88,34 +97,25 @@ class FitConfig:
         return cls(options=SolverOptions(**options), **data)
 
 
-def _is_positive_number(value) -> bool:
-    return (isinstance(value, (int, float)) and not isinstance(value, bool)
-            and math.isfinite(value) and value > 0)
-
-
 def _check_config(config: FitConfig) -> None:
     if not isinstance(config.hard_margin, bool):
         raise InputError(f"hard_margin must be true or false; got {config.hard_margin!r}")
-    if not config.hard_margin and not _is_positive_number(config.C):
-        raise InputError(f"C must be a positive number or 'hard'; got {config.C!r}")
-    if config.kernel not in KERNELS:
-        raise InputError(f"kernel must be one of {', '.join(KERNELS)}; got {config.kernel!r}")
-    if config.kernel in ("polynomial", "rbf") and not _is_positive_number(config.gamma):
-        raise InputError(f"gamma must be a positive number; got {config.gamma!r}")
-    if config.kernel == "polynomial":
-        degree = config.degree
-        if isinstance(degree, float) and degree.is_integer():
-            object.__setattr__(config, "degree", int(degree))
-            degree = config.degree
-        if not isinstance(degree, int) or isinstance(degree, bool) or not 1 <= degree <= 10:
-            raise InputError(f"degree must be a whole number from 1 to 10; got {degree!r}")
-        if not (isinstance(config.offset, (int, float)) and math.isfinite(config.offset)
-                and config.offset >= 0):
-            raise InputError(f"offset must be a number >= 0 (so the polynomial kernel is an "
-                             f"inner product of real features); got {config.offset!r}")
+    if not config.hard_margin:
+        _check("C", config.C, " or 'hard'")
+    if not isinstance(config.kernel, str) or config.kernel not in kernels.REGISTRY:
+        raise InputError(f"kernel must be one of {', '.join(kernels.names())}; "
+                         f"got {config.kernel!r}")
+    for name in config.kernel_spec.parameters:
+        _check(name, getattr(config, name))
+    if isinstance(config.degree, float) and config.degree.is_integer():
+        object.__setattr__(config, "degree", int(config.degree))
     for name in ("weight_positive", "weight_negative"):
-        value = getattr(config, name)
-        if not _is_positive_number(value):
-            raise InputError(f"{name} (a class weight) must be a positive number; got {value!r}")
+        _check(name, getattr(config, name))
     if config.scaling not in SCALINGS:
         raise InputError(f"scaling must be one of {', '.join(SCALINGS)}; got {config.scaling!r}")
+
+
+def _check(name: str, value, also: str = "") -> None:
+    problem = PARAMETERS[name].problem(value, also)
+    if problem is not None:
+        raise InputError(problem)

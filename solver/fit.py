@@ -3,11 +3,11 @@
 from __future__ import annotations
 
 import time
+from dataclasses import dataclass
 
 import numpy as np
 
 from solver import scaling
-from solver import kernels
 from solver.config import FitConfig
 from solver.errors import ConvergenceError, InputError
 from solver.model import DecisionModel
@@ -68,57 +68,84 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
     shift, scale = scaling.scaling_parameters(X, config.scaling)
     Xs = scaling.apply(X, shift, scale)
     penalties = np.array([config.penalty(sign) for sign in (1, -1)])[(y < 0).astype(int)]
+    solve = _solve_primal if config.uses_feature_map else _solve_dual
+    solved = solve(X, Xs, y, penalties, config, shift, scale, warm_start)
+    return _result(X, y, penalties, config, solved, time.perf_counter() - start)
 
-    if config.uses_feature_map:
-        phi = kernels.feature_map(Xs, config.kernel, config.gamma, config.degree, config.offset)
-        guess = None if warm_start is None else y * warm_start.decision_function(X)
-        sol = solve_primal(phi, y, None if config.hard_margin else penalties, config.options,
-                           guess_margin=guess)
-        model = DecisionModel(config.kernel, config.gamma, config.degree, config.offset,
-                              shift, scale, sol.b, feature_weights=sol.w)
-        decision = phi @ sol.w + sol.b
-        alpha = np.clip(sol.alpha, 0.0, penalties)
-        norm_w = float(np.linalg.norm(sol.w))
-        dual_quadratic = float(np.sum((phi.T @ (alpha * y)) ** 2))
-        rounds, working_set = 1, len(y)
-    else:
-        guess, alpha_start = _warm_start_guess(warm_start, X, y, config, penalties)
-        kernel_matrix = lambda A, B: kernels.rbf_matrix(A, B, config.gamma)  # noqa: E731
-        sol = solve_dual(Xs, y, penalties, kernel_matrix, config.options, guess_margin=guess,
-                         alpha_start=alpha_start)
-        alpha = sol.alpha
-        support = np.flatnonzero(alpha > 0)
-        coefficients = alpha[support] * y[support]
-        model = DecisionModel(config.kernel, config.gamma, config.degree, config.offset,
-                              shift, scale, sol.b, support_vectors=Xs[support],
-                              coefficients=coefficients)
-        decision = sol.decision
-        K_ss = kernel_matrix(Xs[support], Xs[support])
-        dual_quadratic = float(coefficients @ K_ss @ coefficients)
-        norm_w = float(np.sqrt(max(dual_quadratic, 0.0)))
-        rounds, working_set = sol.rounds, sol.working_set
-    seconds = time.perf_counter() - start
 
-    margin = y * decision
-    slack = np.maximum(0.0, 1.0 - margin)
+@dataclass(frozen=True)
+class _Solved:
+    """What either solver hands back, before the figures are derived from it."""
+
+    alpha: np.ndarray
+    decision: np.ndarray            # f(x_i) on the training points
+    model: DecisionModel
+    norm_w: float                   # |w| in the space the fit ran in
+    dual_quadratic: float           # (alpha y)' K (alpha y) = |w|^2
+    iterations: int
+    status: str                     # cvxopt's
+    rounds: int = 1
+    working_set: int = 0
+
+
+def _solve_primal(X, Xs, y, penalties, config, shift, scale, warm_start) -> _Solved:
+    """Linear and polynomial kernels: the primal over the exact feature map phi."""
+    phi = config.kernel_spec.features(Xs, config)
+    guess = None if warm_start is None else y * warm_start.decision_function(X)
+    sol = solve_primal(phi, y, None if config.hard_margin else penalties, config.options,
+                       guess_margin=guess)
+    model = DecisionModel(config.kernel, config.gamma, config.degree, config.offset,
+                          shift, scale, sol.b, feature_weights=sol.w)
+    alpha = np.clip(sol.alpha, 0.0, penalties)
+    dual_quadratic = float(np.sum((phi.T @ (alpha * y)) ** 2))   # |sum_i alpha_i y_i phi_i|^2
+    return _Solved(alpha=alpha, decision=phi @ sol.w + sol.b, model=model,
+                   norm_w=float(np.linalg.norm(sol.w)), dual_quadratic=dual_quadratic,
+                   iterations=sol.iterations, status=sol.status, working_set=len(y))
+
+
+def _solve_dual(X, Xs, y, penalties, config, shift, scale, warm_start) -> _Solved:
+    """Kernels without a finite feature map: the dual by decomposition."""
+    guess, alpha_start = _warm_start_guess(warm_start, X, y, config, penalties)
+    kernel = config.kernel_spec
+    kernel_matrix = lambda A, B: kernel.gram(A, B, config)  # noqa: E731
+    sol = solve_dual(Xs, y, penalties, kernel_matrix, config.options, guess_margin=guess,
+                     alpha_start=alpha_start)
+    support = np.flatnonzero(sol.alpha > 0)
+    coefficients = sol.alpha[support] * y[support]                 # alpha_j y_j
+    model = DecisionModel(config.kernel, config.gamma, config.degree, config.offset,
+                          shift, scale, sol.b, support_vectors=Xs[support],
+                          coefficients=coefficients)
+    K_ss = kernel_matrix(Xs[support], Xs[support])
+    dual_quadratic = float(coefficients @ K_ss @ coefficients)
+    return _Solved(alpha=sol.alpha, decision=sol.decision, model=model,
+                   norm_w=float(np.sqrt(max(dual_quadratic, 0.0))),
+                   dual_quadratic=dual_quadratic, iterations=sol.iterations, status=sol.status,
+                   rounds=sol.rounds, working_set=sol.working_set)
+
+
+def _result(X, y, penalties, config, solved: _Solved, seconds: float) -> FitResult:
+    """Slack, objectives, statuses and KKT figures of a solution, as a FitResult."""
+    alpha, decision = solved.alpha, solved.decision
+    margin = y * decision                                    # y_i f(x_i)
+    slack = np.maximum(0.0, 1.0 - margin)                    # xi_i = max(0, 1 - y_i f(x_i))
     finite = np.isfinite(penalties)
-    primal = 0.5 * norm_w ** 2 + float(np.dot(penalties[finite], slack[finite]))
-    dual = float(alpha.sum()) - 0.5 * dual_quadratic
+    primal = 0.5 * solved.norm_w ** 2 + float(np.dot(penalties[finite], slack[finite]))
+    dual = float(alpha.sum()) - 0.5 * solved.dual_quadratic
     relative_gap = abs(primal - dual) / max(1.0, abs(primal))
     status, support = _classify(alpha, penalties, slack, margin, relative_gap)
     kkt = _kkt_residuals(alpha, penalties, y, margin, slack, status)
     # cvxopt may stop on a singular KKT system a step short of its own test;
     # the optimum is still in hand when our own gap and KKT figures say so.
-    converged = sol.status == "optimal" or (relative_gap <= 1e-7 and kkt.largest <= 1e-5)
+    converged = solved.status == "optimal" or (relative_gap <= 1e-7 and kkt.largest <= 1e-5)
     result = FitResult(config=config, X=X, y=y, alpha=alpha, penalties=penalties,
-                       decision=decision, status=status, support=support, model=model,
-                       norm_w=norm_w, primal_objective=primal, dual_objective=dual,
-                       kkt=kkt, iterations=sol.iterations, seconds=seconds,
-                       converged=converged, solver_status=sol.status, rounds=rounds,
-                       working_set=working_set)
+                       decision=decision, status=status, support=support, model=solved.model,
+                       norm_w=solved.norm_w, primal_objective=primal, dual_objective=dual,
+                       kkt=kkt, iterations=solved.iterations, seconds=seconds,
+                       converged=converged, solver_status=solved.status, rounds=solved.rounds,
+                       working_set=solved.working_set)
     if not converged:
         raise ConvergenceError(
-            f"the solver stopped after {sol.iterations} iterations without reaching its "
+            f"the solver stopped after {solved.iterations} iterations without reaching its "
             f"tolerance (relative duality gap {relative_gap:.1e}); the figures shown are "
             "from its last iterate. Try scaling the features or a smaller C.", best=result)
     return result

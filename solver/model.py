@@ -2,8 +2,8 @@
 
 A DecisionModel is all that is needed to apply the classifier elsewhere:
 kernel parameters, scaling parameters and either an explicit weight vector
-over the feature map (linear, polynomial) or support vectors with their
-coefficients alpha_j y_j (RBF).
+over the kernel's feature map (linear, polynomial) or support vectors with
+their coefficients alpha_j y_j (kernels without a finite map, such as RBF).
 """
 
 from __future__ import annotations
@@ -12,8 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from solver import scaling
-from solver import kernels
+from solver import kernels, scaling
 
 _CHUNK = 20_000  # rows per block when evaluating an RBF expansion
 
@@ -28,20 +27,20 @@ class DecisionModel:
     scale: np.ndarray
     b: float
     feature_weights: np.ndarray | None = None   # w over phi(x_scaled)
-    support_vectors: np.ndarray | None = None   # scaled coordinates (RBF)
-    coefficients: np.ndarray | None = None      # alpha_j y_j (RBF)
+    support_vectors: np.ndarray | None = None   # scaled coordinates (dual fits)
+    coefficients: np.ndarray | None = None      # alpha_j y_j (dual fits)
 
     def decision_function(self, points) -> np.ndarray:
         """f(x) for each row of ``points`` (original units)."""
         P = np.atleast_2d(np.asarray(points, dtype=float))
         scaled = scaling.apply(P, self.shift, self.scale)
+        kernel = kernels.get(self.kernel)
         if self.feature_weights is not None:
-            phi = kernels.feature_map(scaled, self.kernel, self.gamma, self.degree, self.offset)
-            return phi @ self.feature_weights + self.b
+            return kernel.features(scaled, self) @ self.feature_weights + self.b
         out = np.empty(len(scaled))
         for start in range(0, len(scaled), _CHUNK):
             block = scaled[start:start + _CHUNK]
-            K = kernels.rbf_matrix(block, self.support_vectors, self.gamma)
+            K = kernel.gram(block, self.support_vectors, self)
             out[start:start + _CHUNK] = K @ self.coefficients + self.b
         return out
 
@@ -57,11 +56,8 @@ class DecisionModel:
                                                      self.shift, self.scale)
             data["w_original_units"] = w.tolist()
             data["b_original_units"] = b
-        if self.kernel in ("polynomial", "rbf"):
-            data["gamma"] = self.gamma
-        if self.kernel == "polynomial":
-            data["degree"] = self.degree
-            data["offset"] = self.offset
+        for name in kernels.get(self.kernel).parameters:
+            data[name] = getattr(self, name)
         if self.feature_weights is not None:
             data["feature_weights"] = self.feature_weights.tolist()
         else:

@@ -4,6 +4,13 @@ from __future__ import annotations
 
 import numpy as np
 
+# the scaling methods and what each does (the window's tooltip, --help)
+METHODS = {
+    "none": "the features as they are",
+    "zscore": "each feature shifted to mean 0 and divided by its standard deviation",
+    "range": "each feature mapped onto [0, 1] by its smallest and largest value",
+}
+
 
 def scaling_parameters(X: np.ndarray, method: str) -> tuple[np.ndarray, np.ndarray]:
     """(shift, scale) per feature for ``method``; a constant feature keeps scale 1."""

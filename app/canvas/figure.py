@@ -11,7 +11,7 @@ import re
 import sys
 from pathlib import Path
 
-from solver.errors import InputError
+from solver import InputError
 
 DEFAULT_SIZE = (1200, 800)
 SIZE_LIMITS = (100, 8000)

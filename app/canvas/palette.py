@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from functools import lru_cache
 
-from solver.files.bundled import resource_json
+from solver.files import resource_json
 
 _FALLBACK = {
     "positive": "#2166ac", "negative": "#e08214",

@@ -15,11 +15,11 @@ from pathlib import Path
 from PySide6.QtCore import QMarginsF, QRectF, QSizeF, QUrl
 from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPainter, QPdfWriter, QTextDocument
 
-from solver.study.compare import compare
-from solver.study.crossval import points_fingerprint
-from solver.errors import InputError
-from solver.study.narrative import summary
-from solver.result import STATUS_TEXT, STATUSES
+from solver.study import compare
+from solver.study import points_fingerprint
+from solver import InputError
+from solver.study import summary
+from solver import STATUS_TEXT, STATUSES
 
 CAUTIONS = ("A boundary tuned by eye on training points is not a validated model. "
             "Validate on held-out data before relying on it. Where the classifier decides "
@@ -168,11 +168,9 @@ def _sweep_line(sweep) -> str:
 
 def _config_line(config) -> str:
     c_text = "hard margin" if config.hard_margin else f"C = {config.C:g}"
-    text = f"{config.kernel} kernel, {c_text}, scaling {config.scaling}"
-    if config.kernel in ("rbf", "polynomial"):
-        text += f", gamma = {config.gamma:g}"
-    if config.kernel == "polynomial":
-        text += f", degree {config.degree}, offset = {config.offset:g}"
+    text = f"{config.kernel_spec.title} kernel, {c_text}, scaling {config.scaling}"
+    for name in config.kernel_spec.parameters:
+        text += f", {name} = {getattr(config, name):g}"
     if (config.weight_positive, config.weight_negative) != (1.0, 1.0):
         text += (f", class weights +1: {config.weight_positive:g}, "
                  f"-1: {config.weight_negative:g}")

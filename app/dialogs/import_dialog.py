@@ -12,8 +12,8 @@ from PySide6.QtGui import QStandardItem, QStandardItemModel
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDialog, QDialogButtonBox, QFormLayout,
                                QLabel, QTableView, QVBoxLayout)
 
-from solver.files.dataset import load_table
-from solver.errors import SlacklineError
+from solver.files import load_table
+from solver import SlacklineError
 
 PREVIEW_ROWS = 20
 LABEL_SCAN_ROWS = 200
@@ -63,7 +63,7 @@ class ImportDialog(QDialog):
         return self.buttons.button(QDialogButtonBox.Ok)
 
     def _read_preview(self):
-        from solver.files.tables import preview_table
+        from solver.files import preview_table
         try:
             self.preview = preview_table(self.path, rows=LABEL_SCAN_ROWS)
         except (SlacklineError, ValueError) as exc:

@@ -13,8 +13,8 @@ import numpy as np
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtGui import QUndoStack
 
-from solver.config import FitConfig
-from solver.files.dataset import Dataset
+from solver import FitConfig
+from solver.files import Dataset
 
 from app.document.worker import SolveController
 

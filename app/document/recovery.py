@@ -12,7 +12,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QObject, QSettings, QTimer
 
-from solver.errors import SlacklineError
+from solver import SlacklineError
 
 DELAY_MS = 3000
 FILE_NAME = "recovery.experiment.json"
@@ -45,7 +45,7 @@ class RecoveryWriter(QObject):
             self.discard()
 
     def write_now(self):
-        from solver.files.experiment import save_experiment
+        from solver.files import save_experiment
         doc = self.document
         if not doc.is_dirty or len(doc.X) == 0:
             return

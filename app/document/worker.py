@@ -14,8 +14,8 @@ import weakref
 
 from PySide6.QtCore import QObject, QThread, Signal, Slot
 
-from solver.errors import ConvergenceError, SlacklineError
-from solver.fit import fit  # looked up at call time, so tests can replace it
+from solver import ConvergenceError, SlacklineError
+from solver import fit  # looked up at call time, so tests can replace it
 
 
 class _Request:

@@ -9,11 +9,11 @@ from __future__ import annotations
 from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMessageBox, QPushButton,
                                QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
 
-from solver.study.compare import compare
-from solver.study.crossval import LEAVE_ONE_OUT, cross_validate, points_fingerprint
-from solver.errors import SlacklineError
-from solver.study.narrative import summary
-from solver.result import STATUS_TEXT
+from solver.study import compare
+from solver.study import LEAVE_ONE_OUT, cross_validate, points_fingerprint
+from solver import SlacklineError
+from solver.study import summary
+from solver import STATUS_TEXT
 
 from app.document.background import BackgroundTask
 from app.document.sweep_store import sweep_store

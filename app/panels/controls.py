@@ -11,7 +11,9 @@ from PySide6.QtWidgets import (QButtonGroup, QCheckBox, QComboBox, QDoubleSpinBo
                                QHBoxLayout, QLineEdit, QRadioButton, QSlider, QSpinBox,
                                QVBoxLayout, QWidget, QGroupBox)
 
-from solver.errors import InputError
+from solver import kernels, scaling
+from solver import InputError
+from solver import PARAMETERS
 
 LOG_C_MIN, LOG_C_MAX = -3.0, 4.0     # the slider spans C = 1e-3 .. 1e4
 SLIDER_STEPS = 700                   # 100 steps per decade
@@ -27,12 +29,23 @@ def C_to_slider(C: float) -> int:
     return int(round(min(max(t, 0.0), 1.0) * SLIDER_STEPS))
 
 
-def _spin(minimum, maximum, decimals, step):
-    box = QDoubleSpinBox()
-    box.setRange(minimum, maximum)
-    box.setDecimals(decimals)
-    box.setSingleStep(step)
+SPIN_LIMIT = 1e4      # the spin boxes' own upper end where a setting has none
+
+
+def _parameter_box(name: str):
+    """A spin box for one solver.parameters setting: its range, step and help."""
+    spec = PARAMETERS[name]
+    if spec.kind is int:
+        box = QSpinBox()
+        box.setRange(int(spec.low), int(min(spec.high, SPIN_LIMIT)))
+    else:
+        box = QDoubleSpinBox()
+        box.setDecimals(spec.decimals)
+        low = spec.low + (10.0 ** -spec.decimals if spec.low_open else 0.0)
+        box.setRange(low, min(spec.high, SPIN_LIMIT))
+    box.setSingleStep(spec.step)
     box.setKeyboardTracking(False)
+    box.setToolTip(spec.help)
     return box
 
 
@@ -58,27 +71,33 @@ class Controls(QWidget):
         row.addWidget(self.slider, 1)
         row.addWidget(self.C_field)
 
+        # the kernel list and its parameter rows come from the kernel registry,
+        # ranges and help texts from solver.parameters
         self.kernel = QComboBox()
-        self.kernel.addItems(["linear", "polynomial", "rbf"])
-        self.gamma = _spin(1e-4, 1e4, 4, 0.1)
-        self.degree = QSpinBox()
-        self.degree.setRange(1, 10)
-        self.offset = _spin(0.0, 1e4, 3, 0.5)
-        self.weight_positive = _spin(1e-3, 1e3, 3, 0.1)
-        self.weight_negative = _spin(1e-3, 1e3, 3, 0.1)
+        for kernel in kernels.REGISTRY.values():
+            self.kernel.addItem(kernel.title, kernel.name)
+            self.kernel.setItemData(self.kernel.count() - 1, kernel.help, Qt.ToolTipRole)
+        self.kernel.setToolTip("the kernel k(x, z) of the decision function")
+        self.parameter_boxes = {name: _parameter_box(name) for name in kernels.parameter_names()}
+        for name, box in self.parameter_boxes.items():
+            setattr(self, name, box)              # self.gamma, self.degree, self.offset
+        self.weight_positive = _parameter_box("weight_positive")
+        self.weight_negative = _parameter_box("weight_negative")
         self.scaling = QComboBox()
-        self.scaling.addItems(["none", "zscore", "range"])
-        self.scaling.setToolTip("standard: zero mean, unit variance; minmax: onto [0, 1]. "
-                                "w and b are always shown in the original units")
+        for method, meaning in scaling.METHODS.items():
+            self.scaling.addItem(method, method)
+            self.scaling.setItemData(self.scaling.count() - 1, meaning, Qt.ToolTipRole)
+        self.scaling.setToolTip("feature scaling before the fit: "
+                                + "; ".join(f"{k}: {v}" for k, v in scaling.METHODS.items())
+                                + ". w and b are always shown in the original units")
 
         self.form = QFormLayout()
         self.form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
         self.form.addRow("C", row)
         self.form.addRow("", self.hard)
         self.form.addRow("kernel", self.kernel)
-        self.form.addRow("gamma", self.gamma)
-        self.form.addRow("degree", self.degree)
-        self.form.addRow("offset", self.offset)
+        for name, box in self.parameter_boxes.items():
+            self.form.addRow(PARAMETERS[name].label, box)
         self.form.addRow("scaling", self.scaling)
         self.weight_form = QFormLayout()
         self.weight_form.addRow("+1 weight", self.weight_positive)
@@ -109,13 +128,15 @@ class Controls(QWidget):
         self.slider.valueChanged.connect(self._slider_moved)
         self.C_field.editingFinished.connect(self._C_typed)
         self.hard.toggled.connect(lambda on: self._change(hard_margin=bool(on)))
-        self.kernel.currentTextChanged.connect(lambda text: self._change(kernel=text))
-        self.gamma.valueChanged.connect(lambda v: self._change(gamma=float(v)))
-        self.degree.valueChanged.connect(lambda v: self._change(degree=int(v)))
-        self.offset.valueChanged.connect(lambda v: self._change(offset=float(v)))
+        self.kernel.currentIndexChanged.connect(
+            lambda index: self._change(kernel=self.kernel.itemData(index)))
+        for name, box in self.parameter_boxes.items():
+            kind = PARAMETERS[name].kind
+            box.valueChanged.connect(lambda v, name=name, kind=kind: self._change(**{name: kind(v)}))
         self.weight_positive.valueChanged.connect(lambda v: self._change(weight_positive=float(v)))
         self.weight_negative.valueChanged.connect(lambda v: self._change(weight_negative=float(v)))
-        self.scaling.currentTextChanged.connect(lambda text: self._change(scaling=text))
+        self.scaling.currentIndexChanged.connect(
+            lambda index: self._change(scaling=self.scaling.itemData(index)))
         self.new_class.idToggled.connect(self._new_class_toggled)
         document.config_changed.connect(self.show_config)
         document.points_changed.connect(self._show_class_names)
@@ -170,16 +191,14 @@ class Controls(QWidget):
             self.hard.setChecked(config.hard_margin)
             self.slider.setEnabled(not config.hard_margin)
             self.C_field.setEnabled(not config.hard_margin)
-            self.kernel.setCurrentText(config.kernel)
-            self.gamma.setValue(config.gamma)
-            self.degree.setValue(int(config.degree))
-            self.offset.setValue(config.offset)
+            self.kernel.setCurrentIndex(self.kernel.findData(config.kernel))
+            used = config.kernel_spec.parameters
+            for name, box in self.parameter_boxes.items():
+                box.setValue(getattr(config, name))
+                self.form.setRowVisible(box, name in used)
             self.weight_positive.setValue(config.weight_positive)
             self.weight_negative.setValue(config.weight_negative)
-            self.scaling.setCurrentText(config.scaling)
-            self.form.setRowVisible(self.gamma, config.kernel in ("polynomial", "rbf"))
-            self.form.setRowVisible(self.degree, config.kernel == "polynomial")
-            self.form.setRowVisible(self.offset, config.kernel == "polynomial")
+            self.scaling.setCurrentIndex(self.scaling.findData(config.scaling))
         finally:
             self._updating = False
 

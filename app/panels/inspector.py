@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
-from solver.result import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT
+from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT
 
 READING = {
     OUTSIDE: "outside the margin: alpha is 0, so this point has no say in where the "

@@ -10,7 +10,7 @@ REFRESH_MS = 120   # new fits reach the table at most this often: the canvas goe
 from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QHBoxLayout, QHeaderView, QLabel,
                                QTableView, QVBoxLayout, QWidget)
 
-from solver.result import STATUS_TEXT, STATUSES
+from solver import STATUS_TEXT, STATUSES
 
 COLUMNS = ("#", "x1", "x2", "label", "f(x)", "y\u00b7f", "distance", "alpha", "slack",
            "status")

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
-from solver.result import INSIDE, MISCLASSIFIED, ON_MARGIN
+from solver import INSIDE, MISCLASSIFIED, ON_MARGIN
 
 ROWS = (
     ("w", "w (weight vector)"),

@@ -9,9 +9,9 @@ from __future__ import annotations
 from PySide6.QtWidgets import (QCheckBox, QDoubleSpinBox, QFormLayout, QHBoxLayout, QLabel,
                                QProgressBar, QPushButton, QSpinBox, QVBoxLayout, QWidget)
 
-from solver.study.crossval import LEAVE_ONE_OUT
-from solver.errors import SlacklineError
-from solver.study.sweep import SweepSettings, run_sweep
+from solver.study import LEAVE_ONE_OUT
+from solver import SlacklineError
+from solver.study import SweepSettings, run_sweep
 
 from app.document.background import BackgroundTask
 from app.panels.sweep_chart import SweepChart
@@ -188,7 +188,7 @@ class SweepPanel(QWidget):
             button.setEnabled(sweep.suggestion is not None and not stale)
 
     def _stale_reason(self) -> str:
-        from solver.study.crossval import points_fingerprint
+        from solver.study import points_fingerprint
         sweep = self.store.sweep
         if points_fingerprint(self.document.X, self.document.y) != sweep.fingerprint:
             return "points changed since this sweep"

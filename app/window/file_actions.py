@@ -12,12 +12,11 @@ from pathlib import Path
 from PySide6.QtCore import QObject, QSettings, Signal
 from PySide6.QtWidgets import QFileDialog, QMessageBox
 
-from solver.errors import SlacklineError
+from solver import SlacklineError
+from solver.files import TABLE_FILTER, TABLE_SUFFIXES
 
 EXPERIMENT_FILTER = "Slackline experiments (*.json)"
-TABLE_FILTER = "Tables (*.csv *.tsv *.tab *.txt *.xlsx)"
 MAX_RECENT = 8
-TABLE_SUFFIXES = (".csv", ".tsv", ".tab", ".txt", ".xlsx")
 
 
 class FileActions(QObject):
@@ -82,7 +81,7 @@ class FileActions(QObject):
             return self.import_path(path)
         if not confirmed and not self.confirm_discard():
             return False
-        from solver.files.experiment import load_experiment
+        from solver.files import load_experiment
         try:
             experiment = load_experiment(path)
         except SlacklineError as exc:
@@ -124,7 +123,7 @@ class FileActions(QObject):
         return self.save_to(path) if path else False
 
     def save_to(self, path) -> bool:
-        from solver.files.experiment import save_experiment
+        from solver.files import save_experiment
         doc = self.document
         doc.wait_for_solve(10000)  # save the figures of these very points when they are ready
         result = doc.current_result()
@@ -175,7 +174,7 @@ class FileActions(QObject):
             "Export points table", "CSV table (*.csv)", f"{self._stem()}.points.csv"))
         if not path:
             return False
-        from solver.files.exports import write_points_csv
+        from solver.files import write_points_csv
         return self._write(write_points_csv, path, result)
 
     def export_model(self, path=None) -> bool:
@@ -184,7 +183,7 @@ class FileActions(QObject):
             "Export model", "Model card (*.json)", f"{self._stem()}.model.json"))
         if not path:
             return False
-        from solver.files.exports import write_model_card
+        from solver.files import write_model_card
         return self._write(write_model_card, path, result)
 
     def _write(self, writer, path, result) -> bool:

@@ -20,6 +20,7 @@ from app.panels.inspector import Inspector
 from app.panels.points_table import PointsTable
 from app.document.recovery import RecoveryWriter, pending_recovery
 from app.panels.summary import Summary
+from solver import kernels
 
 # panels written elsewhere; each docks itself in when its module is present
 OPTIONAL_PANELS = (("app.panels.sweep", "SweepPanel", "C sweep"),
@@ -223,7 +224,7 @@ class MainWindow(QMainWindow):
         self.equal_axes_action.setChecked(equal)
         self.canvas.set_equal_axes(equal)
         kernel = settings.value("fit/last_kernel")
-        if kernel in ("linear", "polynomial", "rbf") and not self.document.X.size:
+        if kernel in kernels.names() and not self.document.X.size:
             self.document.set_config(self.document.config.with_changes(kernel=kernel))
             self.document.undo_stack.clear()
 
@@ -252,7 +253,7 @@ class MainWindow(QMainWindow):
         return self.recover_from(path, original)
 
     def recover_from(self, path, original="") -> bool:
-        from solver.files.experiment import load_experiment
+        from solver.files import load_experiment
         try:
             experiment = load_experiment(path)
         except Exception:

@@ -141,11 +141,11 @@ def save_experiment(path, dataset: Dataset, result, note=None, config=None,
     if config is None:
         config = result.config if result is not None else FitConfig()
     document = experiment_to_dict(dataset, config, result, note=note, heldout=heldout)
-    atomic_write_text(path, render(document))
+    atomic_write_text(path, json_text(document))
     return Path(path)
 
 
-def render(document: dict) -> str:
+def json_text(document: dict) -> str:
     """Readable JSON: sections indented, each point and each number list on one line."""
     return _pretty(document, 0) + "\n"
 

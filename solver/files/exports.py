@@ -9,7 +9,7 @@ alone (the formula is in the card itself):
 
     u = (x - scaling.shift) / scaling.scale                 elementwise
     linear: f(x) = w . x + b                                 (original units)
-    poly:   f(x) = b + sum_t coefficients_t * u1**powers_t[0] * u2**powers_t[1]
+    polynomial: f(x) = b + sum_t coefficients_t * u1**powers_t[0] * u2**powers_t[1]
     rbf:    f(x) = b + sum_j coefficients_j * exp(-gamma * |u - support_vectors_j|^2)
     class:  classes.positive when f(x) >= 0, else classes.negative
 """
@@ -17,15 +17,13 @@ alone (the formula is in the card itself):
 from __future__ import annotations
 
 import csv
-from math import factorial, sqrt
-
 import numpy as np
 
 from solver.files.atomic import atomic_open, atomic_write_text
 from solver.files.dataset import Dataset
 from solver.errors import InputError
-from solver.files.experiment import provenance, render, results_to_dict
-from solver.kernels import poly_exponents
+from solver.files.experiment import json_text, provenance, results_to_dict
+from solver import kernels
 
 # OWASP, "CSV Injection": cells starting with these characters are read as
 # formulas by spreadsheets; prefixing a single quote makes them plain text.
@@ -34,13 +32,13 @@ FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 POINT_COLUMNS = ("point", "line", "{0}", "{1}", "label", "sign", "decision",
                  "functional_margin", "distance", "alpha", "slack", "status")
 
-FORMULA = [
-    "u = (x - scaling.shift) / scaling.scale, elementwise, x = [feature 1, feature 2]",
-    "linear: f(x) = w . x + b   (w and b in the features' original units)",
-    "poly:   f(x) = b + sum_t coefficients[t] * u1**powers[t][0] * u2**powers[t][1]",
-    "rbf:    f(x) = b + sum_j coefficients[j] * exp(-gamma * |u - support_vectors[j]|^2)",
-    "class:  classes.positive when f(x) >= 0, otherwise classes.negative",
-]
+SCALING_FORMULA = "u = (x - scaling.shift) / scaling.scale, elementwise, x = [feature 1, feature 2]"
+CLASS_FORMULA = "class:  classes.positive when f(x) >= 0, otherwise classes.negative"
+
+
+def formula(kernel_name: str) -> list[str]:
+    """How to evaluate the exported classifier, in words and symbols."""
+    return [SCALING_FORMULA, kernels.get(kernel_name).formula, CLASS_FORMULA]
 
 
 def neutralise(cell):
@@ -96,40 +94,17 @@ def model_card(dataset: Dataset, result) -> dict:
         "kernel": model["kernel"],
         "scaling": {"shift": model["shift"], "scale": model["scale"]},
     }
+    card.update(kernels.get(model["kernel"]).export_terms(model))
     if model["kernel"] == "linear":
         card.update(w=figures["w"], b=figures["b"])
-    elif model["kernel"] == "polynomial":
-        powers, coefficients = _monomials(model)
-        card.update(gamma=model["gamma"], degree=model["degree"], offset=model["offset"],
-                    powers=powers, coefficients=coefficients, b=model["b"])
     else:
-        card.update(gamma=model["gamma"], support_vectors=model["support_vectors"],
-                    coefficients=model["coefficients"], b=model["b"])
-    card["formula"] = FORMULA
+        card["b"] = model["b"]
+    card["formula"] = formula(model["kernel"])
     return card
 
 
 def write_model_card(path, dataset: Dataset, result) -> None:
-    atomic_write_text(path, render(model_card(dataset, result)))
-
-
-def _monomials(model: dict) -> tuple[list[list[int]], list[float]]:
-    """The polynomial f - b as coefficients of u1^i u2^j.
-
-    The primal ran on phi_ijk(u) = sqrt(p!/(i! j! k!) c^k) (sqrt(gamma) u1)^i
-    (sqrt(gamma) u2)^j over i + j + k = p (solver.kernels), so the weight w_ijk
-    contributes w_ijk sqrt(p!/(i! j! k!) c^k) gamma^((i+j)/2) to u1^i u2^j.
-    """
-    p, c, gamma = model["degree"], model["offset"], model["gamma"]
-    weights = iter(model["feature_weights"])
-    powers, coefficients = [], []
-    for i, j, k in poly_exponents(p):
-        multinomial = sqrt(factorial(p) / (factorial(i) * factorial(j) * factorial(k)) * c ** k)
-        if multinomial == 0.0:
-            continue  # solver.kernels drops these columns (offset = 0)
-        powers.append([i, j])
-        coefficients.append(float(next(weights) * multinomial * gamma ** ((i + j) / 2)))
-    return powers, coefficients
+    atomic_write_text(path, json_text(model_card(dataset, result)))
 
 
 # -- helpers -------------------------------------------------------------------

@@ -66,7 +66,14 @@ def heldout_section(points: HeldOutPoints, decision, confusion: dict) -> dict:
             "error": wrong / len(points), "confusion": dict(confusion)}
 
 
-def heldout_from_section(section: dict, label_mapping: dict, key=lambda label: label):
+def same_label(label):
+    """Labels compare by value: 1 and 1.0 are the same label (as in experiment files)."""
+    if isinstance(label, float) and label.is_integer():
+        return int(label)
+    return label
+
+
+def heldout_from_section(section: dict, label_mapping: dict, key=same_label):
     """HeldOutPoints of a validated section (``key`` normalises labels as the file layer does)."""
     points = section["points"]
     labels = tuple(key(p["label"]) for p in points)
@@ -79,7 +86,7 @@ def heldout_from_section(section: dict, label_mapping: dict, key=lambda label: l
                          source=source.get("file"), sha256=source.get("sha256"))
 
 
-def section_problems(section, known_labels, key=lambda label: label) -> list[str]:
+def section_problems(section, known_labels, key=same_label) -> list[str]:
     """What the schema cannot say: labels of the mapping, one decision value per point."""
     if section is None:
         return []

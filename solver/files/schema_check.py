@@ -6,11 +6,13 @@ jsonschema finds the problems; this module only words them:
 
 from __future__ import annotations
 
+import copy
 import json
 from functools import lru_cache
 
 from jsonschema import Draft202012Validator
 
+from solver import kernels
 from solver.files.bundled import resource_json
 
 MAX_PROBLEMS = 100  # listed one by one; the rest are counted
@@ -19,14 +21,26 @@ _JSON_TYPES = {dict: "an object", list: "an array", str: "a string", bool: "true
                int: "a number", float: "a number", type(None): "null"}
 
 
-@lru_cache(maxsize=1)
 def experiment_schema() -> dict:
-    return resource_json("experiment.schema.json")
+    """The experiment schema, its kernel enumerations read from the kernel registry."""
+    return _schema_for(kernels.names())
 
 
-@lru_cache(maxsize=1)
+@lru_cache(maxsize=4)
+def _schema_for(kernel_names: tuple[str, ...]) -> dict:
+    schema = copy.deepcopy(resource_json("experiment.schema.json"))
+    for where in (schema["properties"]["config"], schema["$defs"]["model"]):
+        where["properties"]["kernel"]["enum"] = list(kernel_names)
+    return schema
+
+
 def _validator() -> Draft202012Validator:
-    return Draft202012Validator(experiment_schema())
+    return _validator_for(kernels.names())
+
+
+@lru_cache(maxsize=4)
+def _validator_for(kernel_names: tuple[str, ...]) -> Draft202012Validator:
+    return Draft202012Validator(_schema_for(kernel_names))
 
 
 def pointer(path) -> str:

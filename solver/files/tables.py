@@ -25,6 +25,8 @@ from solver.errors import FileFormatError
 
 TAB_SUFFIXES = (".tsv", ".tab")
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
+TABLE_SUFFIXES = (".csv", ".txt") + TAB_SUFFIXES + EXCEL_SUFFIXES   # every table read_table reads
+TABLE_FILTER = "Tables (" + " ".join(f"*{suffix}" for suffix in TABLE_SUFFIXES) + ")"
 DELIMITERS = (",", ";", "\t")
 DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab"}
 PREVIEW_BYTES = 1 << 20

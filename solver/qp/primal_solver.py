@@ -21,6 +21,7 @@ primal (b is a free variable), so any split is feasible.
 
 from __future__ import annotations
 
+import logging
 from dataclasses import replace
 
 import numpy as np
@@ -33,7 +34,7 @@ SUBSAMPLE = 400         # points in the first, guessing fit
 FIRST_WORKING_SET = 150
 ADD_PER_ROUND = 100
 MAX_ROUNDS = 50
-DEBUG = False
+log = logging.getLogger(__name__)   # rounds at DEBUG level: logging.getLogger('solver').setLevel(...)
 
 
 def solve_primal(phi: np.ndarray, y: np.ndarray, penalties: np.ndarray | None, options,
@@ -84,9 +85,8 @@ def _solve_on_working_set(phi, y, penalties, options, guess_margin) -> PrimalSol
                 alpha[held_in] = penalties[held_in]
             return replace(sol, alpha=alpha, iterations=iterations)
         count = int(np.count_nonzero(violation))
-        if DEBUG:
-            print(f"round {rounds}: |W| = {len(widx)}, held inside {len(held_in)}, "
-                  f"{count} violators, worst {violation.max():.2e}")
+        log.debug("round %d: |W| = %d, held inside %d, %d violators, worst %.2e",
+                  rounds, len(widx), len(held_in), count, violation.max())
         worst = np.argsort(-violation)[:max(ADD_PER_ROUND, count)]
         worst = worst[violation[worst] > 0]
         work[worst] = True

@@ -1,0 +1,21 @@
+"""Studies over many fits: cross-validation, the C sweep, comparing two fits,
+and the plain-words sentence about what changed.
+
+The window and the command line import from here, not from the modules.
+"""
+
+from solver.study.compare import Comparison, compare
+from solver.study.crossval import LEAVE_ONE_OUT, CVEstimate, cross_validate, points_fingerprint
+from solver.study.heldout import (DATA_UNITS, FEATURE_SPACE, Classifier, Confusion, Scores,
+                                  confusion, score)
+from solver.study.narrative import summary
+from solver.study.sweep import (DEFAULT_FROM, DEFAULT_STEPS, DEFAULT_TO, SweepSettings,
+                                run_sweep)
+from solver.study.sweep_result import FitFailure, SweepResult
+
+__all__ = [
+    "Comparison", "compare", "LEAVE_ONE_OUT", "CVEstimate", "cross_validate",
+    "points_fingerprint", "summary", "DEFAULT_FROM", "DEFAULT_STEPS", "DEFAULT_TO",
+    "SweepSettings", "run_sweep", "FitFailure", "SweepResult", "DATA_UNITS", "FEATURE_SPACE",
+    "Classifier", "Confusion", "Scores", "confusion", "score",
+]

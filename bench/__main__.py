@@ -3,7 +3,7 @@
 import importlib
 import sys
 
-MODULES = ["solver_bench", "gui_bench", "sweep_bench", "file_bench"]
+MODULES = ["solver_bench", "gui_bench", "sweep_bench", "file_bench", "influence_bench"]
 
 
 def main(argv) -> int:

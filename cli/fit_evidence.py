@@ -13,7 +13,8 @@ import sys
 from dataclasses import dataclass
 
 from solver.files import HeldOutPoints, heldout_section, read_new_rows
-from solver.study import Confusion, Scores, confusion, score
+from solver.study import (Confusion, Influence, Scores, confusion,
+                          influence_of_support_vectors, score)
 from cli.evidence_io import CAUTION
 
 
@@ -30,7 +31,7 @@ class Evidence:
     heldout: HeldOutPoints | None = None
     scores: Scores | None = None
     counts: Confusion | None = None
-    influence: object = None        # solver.study.influence.Influence, with --influence
+    influence: Influence | None = None
 
     def heldout_section(self) -> dict | None:
         if self.heldout is None:
@@ -45,6 +46,7 @@ class Evidence:
                             "source": self.heldout.source}
         if self.influence is not None:
             data["influence"] = self.influence.to_json()
+            data["influence_note"] = self.influence.note()
         return data
 
     def text(self) -> str:
@@ -74,7 +76,6 @@ def evidence_for(args, dataset, result) -> Evidence:
         counts = confusion(heldout.signs, scores.signs, dataset.label_mapping)
         print(CAUTION, file=sys.stderr)
     if getattr(args, "influence", False):
-        from solver.study.influence import influence_of_support_vectors
         influence = influence_of_support_vectors(
             result, heldout=None if heldout is None else heldout.X)
     return Evidence(heldout=heldout, scores=scores, counts=counts, influence=influence)

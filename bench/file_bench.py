@@ -19,7 +19,7 @@ import numpy as np
 from solver import FitConfig, fit
 from solver.files.dataset import load_table
 from solver.files.experiment import load_experiment, save_experiment
-from solver.files.exports import write_model_card, write_points_csv
+from solver.files import write_classifier, write_points_csv
 
 
 def _median_ms(action, repeats: int = 5) -> float:
@@ -49,11 +49,11 @@ def main() -> None:
             save_ms = _median_ms(lambda: save_experiment(experiment, data, result), 3)
             open_ms = _median_ms(lambda: load_experiment(experiment), 3)
             points_ms = _median_ms(lambda: write_points_csv(folder / "p.csv", data, result), 3)
-            card_ms = _median_ms(lambda: write_model_card(folder / "m.json", data, result), 3)
+            card_ms = _median_ms(lambda: write_classifier(folder / "m.json", data, result), 3)
             size_mb = experiment.stat().st_size / 1e6
             print(f"n = {n:>7,}: import {load_ms:8.1f} ms | experiment save {save_ms:8.1f} ms, "
                   f"load+validate {open_ms:8.1f} ms ({size_mb:.1f} MB) | points CSV "
-                  f"{points_ms:7.1f} ms | model card {card_ms:5.1f} ms", flush=True)
+                  f"{points_ms:7.1f} ms | classifier {card_ms:5.1f} ms", flush=True)
 
 
 if __name__ == "__main__":

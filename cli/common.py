@@ -41,7 +41,7 @@ def add_config_arguments(parser: argparse.ArgumentParser) -> None:
         parser.add_argument(f"--{name}", type=_number(name), default=spec.default,
                             help=f"{spec.help} [{users}] (default {spec.default:g})")
     for old, new in OLD_OPTIONS.items():
-        parser.add_argument(old, nargs="?", action=_Renamed, new=new, help=argparse.SUPPRESS)
+        parser.add_argument(old, nargs="?", action=Renamed, new=new, help=argparse.SUPPRESS)
     parser.add_argument("--weight", action="append", default=[], metavar="LABEL=FACTOR",
                         help="class weight: multiply C for points of LABEL (repeatable)")
     parser.add_argument("--scale", type=_choice("scale", lambda: tuple(scaling.METHODS)),
@@ -56,18 +56,19 @@ OLD_SPELLINGS = {"kernel": {"poly": "polynomial"}, "scale": {"standard": "zscore
                                                              "minmax": "range"}}
 
 
-OLD_OPTIONS = {"--coef0": "--offset"}
+OLD_OPTIONS = {"--coef0": "--offset", "--model": "--classifier"}
 
 
-class _Renamed(argparse.Action):
-    """An option of other tools' spelling: refused with the name it has here."""
+class Renamed(argparse.Action):
+    """An option of other tools' spelling (or of an older release): refused with the
+    name it has here."""
 
-    def __init__(self, *args, new: str, **kwargs):
+    def __init__(self, *args, new: str = "", **kwargs):
         self.new = new
         super().__init__(*args, **kwargs)
 
     def __call__(self, parser, namespace, values, option_string=None):
-        parser.error(f"{option_string} is called {self.new} here")
+        parser.error(f"{option_string} is called {self.new or OLD_OPTIONS[option_string]} here")
 
 
 def _choice(option: str, allowed):

@@ -1,8 +1,4 @@
-"""Small output helpers of the evidence commands (predict, fit --test).
-
-CAUTION is the line printed on stderr wherever the tool scores data; a
-shared home for it may replace this one.
-"""
+"""Output guard of ``slackline predict``: never write over an input file."""
 
 from __future__ import annotations
 
@@ -10,11 +6,6 @@ import os
 from pathlib import Path
 
 from solver import InputError
-
-CAUTION = ("caution: a boundary tuned by eye on training points is not a validated model; "
-           "validate on held-out data; where it decides about people, parts or patients, "
-           "follow local regulations and licensed practice")
-
 
 def refuse_overwriting_inputs(output, inputs) -> None:
     """InputError when ``output`` names the same file as one of ``inputs``."""

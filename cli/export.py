@@ -1,18 +1,19 @@
-"""``slackline export EXPERIMENT.json --points out.csv --model out.json``.
+"""``slackline export EXPERIMENT.json --points out.csv --classifier out.json``.
 
-Writes the experiment's per-point table (CSV) and/or its model card (JSON)
-from the figures stored in the file.  An experiment saved without results is
+Writes the experiment's per-point table (CSV) and/or its classifier file
+(JSON: the decision function, what it was trained on, and the cautions) from
+the figures stored in the file.  An experiment saved without results is
 fitted first with its stored configuration (said on stderr).
 """
 
 from __future__ import annotations
 
+import argparse
 import sys
 
-from solver import InputError
-from solver.files import load_experiment
-from solver.files import write_model_card, write_points_csv
-from solver import fit
+from cli.common import Renamed as _Renamed
+from solver import CAUTION_LINE, InputError, fit
+from solver.files import load_experiment, write_classifier, write_points_csv
 
 
 def add_arguments(parser) -> None:
@@ -20,13 +21,16 @@ def add_arguments(parser) -> None:
     parser.add_argument("--points", metavar="OUT.csv",
                         help="per-point table: features, label, sign, decision value, "
                              "functional margin, distance, alpha, slack, status")
-    parser.add_argument("--model", metavar="OUT.json",
-                        help="model card: what it takes to apply the classifier elsewhere")
+    parser.add_argument("--classifier", metavar="OUT.json",
+                        help="classifier file: the decision function with what it takes to "
+                             "apply it elsewhere, what it was trained on, and the cautions")
+    parser.add_argument("--model", nargs="?", action=_Renamed, help=argparse.SUPPRESS)
 
 
 def run(args) -> int:
-    if not args.points and not args.model:
-        raise InputError("say what to export: --points OUT.csv, --model OUT.json, or both")
+    if not args.points and not args.classifier:
+        raise InputError("say what to export: --points OUT.csv, --classifier OUT.json, "
+                         "or both")
     experiment = load_experiment(args.experiment)
     figures = experiment.results
     if figures is None:
@@ -36,7 +40,8 @@ def run(args) -> int:
     if args.points:
         write_points_csv(args.points, experiment.dataset, figures)
         print(f"wrote the per-point table of {len(experiment.dataset)} points to {args.points}")
-    if args.model:
-        write_model_card(args.model, experiment.dataset, figures)
-        print(f"wrote the model card to {args.model}")
+    if args.classifier:
+        write_classifier(args.classifier, experiment.dataset, figures)
+        print(f"wrote the classifier to {args.classifier}")
+    print(CAUTION_LINE, file=sys.stderr)
     return 0

@@ -3,10 +3,10 @@
 from __future__ import annotations
 
 import json
+import math
 import sys
 
-from solver import fit
-from solver import STATUS_TEXT, STATUSES, result_to_dict
+from solver import CAUTION_LINE, INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, fit
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 from cli.fit_evidence import add_evidence_arguments, evidence_for
 
@@ -31,7 +31,11 @@ def run(args) -> int:
         from solver.files import save_experiment  # the file layer
         save_experiment(args.save, dataset, result, heldout=evidence.heldout_section())
     if args.json:
-        data = result_to_dict(result)
+        data = result.to_dict()
+        data["functional_margin"] = result.functional_margin.tolist()   # y_i f(x_i)
+        data["distance"] = _finite_list(result.distance)                 # y_i f(x_i) / |w|
+        if result.projection is not None:
+            data["projection"] = result.projection.tolist()               # w.x_i / |w|
         data["features"] = list(dataset.feature_names)
         data["label_mapping"] = {str(k): v for k, v in dataset.label_mapping.items()}
         data.update(evidence.to_json())
@@ -39,7 +43,12 @@ def run(args) -> int:
         sys.stdout.write("\n")
     else:
         print(summary_text(result, dataset) + evidence.text())
+    print(CAUTION_LINE, file=sys.stderr)
     return 0
+
+
+def _finite_list(values) -> list:
+    return [float(v) if math.isfinite(v) else None for v in values]
 
 
 def summary_text(result, dataset) -> str:
@@ -53,8 +62,10 @@ def summary_text(result, dataset) -> str:
                      f"margin width 2/|w| = {result.margin_width:.6g}")
     else:
         lines.append(f"  b = {result.b:.6g}")
-    counts = ", ".join(f"{result.count(s)} {STATUS_TEXT[s]}" for s in STATUSES)
-    lines.append(f"  support vectors: {result.n_support}  ({counts})")
+    held = ", ".join(f"{result.count(s)} {STATUS_TEXT[s]}" for s in (ON_MARGIN, INSIDE,
+                                                                      MISCLASSIFIED))
+    lines.append(f"  support vectors: {result.n_support} ({held}); "
+                 f"the other {result.count(OUTSIDE)} points are {STATUS_TEXT[OUTSIDE]}")
     lines.append(f"  training error {result.training_error:.1%}   objective "
                  f"1/2|w|^2 = {result.half_norm_w2:.6g}, sum C_i xi_i = {result.penalty_term:.6g}")
     lines.append(f"  primal {result.primal_objective:.10g}  dual {result.dual_objective:.10g}  "

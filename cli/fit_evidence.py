@@ -15,7 +15,6 @@ from dataclasses import dataclass
 from solver.files import HeldOutPoints, heldout_section, read_new_rows
 from solver.study import (Confusion, Influence, Scores, confusion,
                           influence_of_support_vectors, score)
-from cli.evidence_io import CAUTION
 
 
 def add_evidence_arguments(parser) -> None:
@@ -74,7 +73,6 @@ def evidence_for(args, dataset, result) -> Evidence:
                   file=sys.stderr)
         scores = score(result, heldout.X, dataset.label_mapping)
         counts = confusion(heldout.signs, scores.signs, dataset.label_mapping)
-        print(CAUTION, file=sys.stderr)
     if getattr(args, "influence", False):
         influence = influence_of_support_vectors(
             result, heldout=None if heldout is None else heldout.X)

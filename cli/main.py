@@ -17,7 +17,7 @@ from solver import SlacklineError
 COMMANDS = {
     "fit": ("cli.fit", "fit a support vector machine to a CSV/TSV file"),
     "check": ("cli.check", "re-run an experiment file and compare its numbers"),
-    "export": ("cli.export", "write an experiment's points table or model card"),
+    "export": ("cli.export", "write an experiment's points table or classifier file"),
     "sweep": ("cli.sweep", "fit across a range of C with cross-validation"),
     "render": ("cli.render", "draw an experiment's canvas to a PNG/SVG file, no window"),
     "predict": ("cli.predict", "apply an experiment's classifier to new rows of a CSV/TSV file"),

@@ -13,10 +13,10 @@ import io
 import json
 import sys
 
-from solver import InputError
+from solver import CAUTION_LINE, InputError
 from solver.files import atomic_write_text, load_experiment, neutralise, read_new_rows
 from solver.study import Classifier, confusion, score
-from cli.evidence_io import CAUTION, refuse_overwriting_inputs
+from cli.evidence_io import refuse_overwriting_inputs
 
 
 def add_arguments(parser) -> None:
@@ -60,7 +60,7 @@ def run(args) -> int:
         print(f"wrote {len(rows)} scored rows to {args.output}", file=sys.stderr)
     else:
         sys.stdout.write(text)
-    print(CAUTION, file=sys.stderr)
+    print(CAUTION_LINE, file=sys.stderr)
     return 0
 
 

@@ -5,6 +5,7 @@
 """
 
 from solver import kernels
+from solver.cautions import CAUTION_LINE, CAUTIONS
 from solver.config import FitConfig, SolverOptions
 from solver.errors import (ConvergenceError, FileFormatError, InputError, NotSeparableError,
                            SlacklineError)
@@ -12,13 +13,13 @@ from solver.fit import fit, validate_points
 from solver.model import DecisionModel
 from solver.parameters import PARAMETERS, Parameter
 from solver.result import (INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, STATUSES,
-                           FitResult, KKTResiduals, result_to_dict)
+                           FitResult, KKTResiduals)
 
 __version__ = "0.1.0"
 
 __all__ = [
     "fit", "validate_points", "FitConfig", "SolverOptions", "FitResult", "KKTResiduals",
     "DecisionModel", "STATUSES", "STATUS_TEXT", "INSIDE", "MISCLASSIFIED", "ON_MARGIN",
-    "OUTSIDE", "result_to_dict", "kernels", "PARAMETERS", "Parameter", "SlacklineError", "InputError",
+    "OUTSIDE", "CAUTIONS", "CAUTION_LINE", "kernels", "PARAMETERS", "Parameter", "SlacklineError", "InputError",
     "NotSeparableError", "ConvergenceError", "FileFormatError", "__version__",
 ]

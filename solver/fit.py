@@ -165,7 +165,7 @@ def _warm_start_guess(warm_start, X, y, config, penalties):
                    and warm_start.config.gamma == config.gamma
                    and warm_start.config.scaling == config.scaling)
     if same_points and same_kernel:
-        at_bound = warm_start.status != "outside"
+        at_bound = warm_start.status != OUTSIDE
         at_bound &= np.isfinite(warm_start.penalties)
         at_bound &= warm_start.alpha >= warm_start.penalties * (1 - 1e-6)
         alpha = np.where(at_bound, penalties, np.minimum(warm_start.alpha, penalties))

@@ -45,22 +45,17 @@ class DecisionModel:
         return out
 
     def to_dict(self) -> dict:
-        """Plain JSON-ready description (the model card's core)."""
-        data = {
-            "kernel": self.kernel,
-            "scaling": {"shift": self.shift.tolist(), "scale": self.scale.tolist()},
-            "b": self.b,
+        """The decision function as experiment files store it (results.model)."""
+        return {
+            "kernel": self.kernel, "gamma": float(self.gamma), "degree": int(self.degree),
+            "offset": float(self.offset), "shift": _floats(self.shift),
+            "scale": _floats(self.scale), "b": float(self.b),
+            "feature_weights": _floats(self.feature_weights),
+            "support_vectors": (None if self.support_vectors is None
+                                else np.asarray(self.support_vectors, float).tolist()),
+            "coefficients": _floats(self.coefficients),
         }
-        if self.kernel == "linear":
-            w, b = scaling.weights_in_original_units(self.feature_weights, self.b,
-                                                     self.shift, self.scale)
-            data["w_original_units"] = w.tolist()
-            data["b_original_units"] = b
-        for name in kernels.get(self.kernel).parameters:
-            data[name] = getattr(self, name)
-        if self.feature_weights is not None:
-            data["feature_weights"] = self.feature_weights.tolist()
-        else:
-            data["support_vectors"] = self.support_vectors.tolist()
-            data["coefficients"] = self.coefficients.tolist()
-        return data
+
+
+def _floats(array):
+    return None if array is None else [float(v) for v in np.asarray(array, dtype=float).ravel()]

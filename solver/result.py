@@ -177,36 +177,39 @@ class FitResult:
         """Sign of f: +1 or -1 (0 maps to +1)."""
         return np.where(self.decision_function(points) >= 0, 1, -1)
 
+    # -- the one serialiser ----------------------------------------------------
+    def to_dict(self) -> dict:
+        """Every figure of the fit as plain JSON values (non-finite numbers as None).
 
-def result_to_dict(result: FitResult) -> dict:
-    """JSON-ready figures of a result; per-point arrays in input row order."""
-    data = {
-        "kernel": result.config.kernel,
-        "b": result.b,
-        "alpha": result.alpha.tolist(),
-        "slack": result.slack.tolist(),
-        "decision": result.decision.tolist(),
-        "functional_margin": result.functional_margin.tolist(),
-        "distance": result.distance.tolist(),
-        "status": result.status.tolist(),
-        "support": result.support.tolist(),
-        "counts": {status: result.count(status) for status in STATUSES},
-        "training_error": result.training_error,
-        "objective": {
-            "primal": result.primal_objective,
-            "dual": result.dual_objective,
-            "gap": result.duality_gap,
-            "regularisation": result.half_norm_w2,
-            "penalty": result.penalty_term,
-        },
-        "kkt_residuals": result.kkt.to_dict(),
-        "iterations": result.iterations,
-        "rounds": result.rounds,
-        "seconds": result.seconds,
-        "converged": result.converged,
-    }
-    if result.w is not None:
-        data["w"] = result.w.tolist()
-        data["margin_width"] = result.margin_width
-        data["projection"] = result.projection.tolist()
-    return data
+        Experiment files store exactly this (their "results"), ``slackline fit
+        --json`` prints it, and the exports read it.  Per-point arrays are in
+        input row order.
+        """
+        return {
+            "w": None if self.w is None else [float(v) for v in self.w],
+            "b": float(self.b),
+            "weight_norm": float(self.weight_norm),
+            "margin_width": _finite(self.margin_width),
+            "objective": {"primal": float(self.primal_objective),
+                          "dual": float(self.dual_objective),
+                          "gap": _finite(self.duality_gap),
+                          "regularisation": _finite(self.half_norm_w2),
+                          "penalty": _finite(self.penalty_term)},
+            "support": [int(i) for i in self.support],
+            "alpha": self.alpha.astype(float).tolist(),
+            "slack": self.slack.astype(float).tolist(),
+            "decision": self.decision.astype(float).tolist(),
+            "status": [str(s) for s in self.status],
+            "counts": {status: self.count(status) for status in STATUSES},
+            "training_error": _finite(self.training_error),
+            "kkt_residuals": {k: _finite(v) for k, v in self.kkt.to_dict().items()},
+            "solver": {"iterations": int(self.iterations), "rounds": int(self.rounds),
+                       "seconds": float(self.seconds), "converged": bool(self.converged),
+                       "status": str(self.solver_status)},
+            "model": self.model.to_dict(),
+        }
+
+
+def _finite(value):
+    value = float(value)
+    return value if np.isfinite(value) else None

@@ -73,21 +73,21 @@ def test_check_json_prints_one_object_with_every_comparison(copy, capsys):
     assert {c["quantity"] for c in report["comparisons"]} >= {"w", "b", "alpha", "status"}
 
 
-def test_export_writes_the_points_table_and_the_model_card(copy, tmp_path):
+def test_export_writes_the_points_table_and_the_classifier(copy, tmp_path):
     points, card = tmp_path / "points.csv", tmp_path / "card.json"
-    assert main(["export", str(copy), "--points", str(points), "--model", str(card)]) == 0
+    assert main(["export", str(copy), "--points", str(points), "--classifier", str(card)]) == 0
     assert points.read_text(encoding="utf-8").startswith("point,line,bore deviation [um]")
     assert json.loads(card.read_text(encoding="utf-8"))["classes"]["positive"] == "pass"
 
 
 def test_export_without_a_target_says_what_to_ask_for(copy, capsys):
     assert main(["export", str(copy)]) == 2
-    assert "--points OUT.csv, --model OUT.json" in capsys.readouterr().err
+    assert "--points OUT.csv, --classifier OUT.json" in capsys.readouterr().err
 
 
 def test_export_of_an_unfitted_experiment_fits_it_first(copy, tmp_path, capsys):
     rewrite(copy, lambda document: document.update(results=None))
-    assert main(["export", str(copy), "--model", str(tmp_path / "card.json")]) == 0
+    assert main(["export", str(copy), "--classifier", str(tmp_path / "card.json")]) == 0
     assert "fitting it with its stored configuration" in capsys.readouterr().err
 
 

@@ -36,8 +36,9 @@ def test_json_output_is_one_object_with_the_contract_keys(gauges, capsys):
     assert status == 0
     data = json.loads(out)
     for key in ("w", "b", "alpha", "slack", "decision", "status", "support", "margin_width",
-                "objective", "iterations", "seconds"):
+                "objective", "solver", "model", "functional_margin", "distance"):
         assert key in data
+    assert set(data["solver"]) >= {"iterations", "seconds", "converged"}
     assert set(data["objective"]) >= {"primal", "dual"}
     assert len(data["alpha"]) == 6
     assert "'pass' -> +1" in err

@@ -1,5 +1,6 @@
 """Files and the session: open a sample, import through the dialog, save and reopen, recovery."""
 
+import json
 from pathlib import Path
 
 import numpy as np
@@ -89,11 +90,13 @@ def test_export_picture_writes_png_and_svg(window, qtbot, tmp_path):
     assert "<svg" in (tmp_path / "fit.svg").read_text()
 
 
-def test_export_points_table_and_model_write_files(window, qtbot, tmp_path):
+def test_export_points_table_and_classifier_write_files(window, qtbot, tmp_path):
     load_points(window, qtbot, gauge_points())
     assert window.files.export_points(str(tmp_path / "points.csv"))
-    assert window.files.export_model(str(tmp_path / "model.json"))
+    assert window.files.export_classifier(str(tmp_path / "classifier.json"))
     assert len((tmp_path / "points.csv").read_text().splitlines()) == 25
+    classifier = json.loads((tmp_path / "classifier.json").read_text())
+    assert classifier["format"] == "slackline-classifier" and classifier["cautions"]
 
 
 def test_an_edit_writes_a_recovery_file_that_a_new_window_can_recover(window, qtbot):

@@ -19,11 +19,8 @@ from solver.study import compare
 from solver.study import points_fingerprint
 from solver import InputError
 from solver.study import summary
-from solver import STATUS_TEXT, STATUSES
+from solver import CAUTIONS, STATUS_TEXT, STATUSES
 
-CAUTIONS = ("A boundary tuned by eye on training points is not a validated model. "
-            "Validate on held-out data before relying on it. Where the classifier decides "
-            "about people, parts or patients, follow local regulations and licensed practice.")
 LAYOUT_WIDTH = 1000          # logical width the page is laid out at, in pixels
 PNG_SIZE = (1240, 1754)      # A4 portrait at 150 dpi
 PICTURE = (470, 360)
@@ -109,7 +106,7 @@ def build_document(dataset, current, pinned=None, sweep=None, cv_before=None, cv
         parts.append("<p><b>C sweep.</b> " + _e(_sweep_line(sweep)) + "</p>")
         parts.append("<p><img src='image://sweep' width='960'></p>")
     parts.append(f"<p><b>Configuration.</b> {_e(_config_line(current.config))}</p>")
-    parts.append(f"<p><b>Cautions.</b> {_e(CAUTIONS)}</p>")
+    parts.append(f"<p><b>Cautions.</b> {_e(' '.join(CAUTIONS))}</p>")
     doc.setHtml("<body style='font-family: sans-serif; font-size: 11pt'>"
                 + "".join(parts) + "</body>")
     return doc

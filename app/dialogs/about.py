@@ -4,15 +4,7 @@ from __future__ import annotations
 
 from PySide6.QtWidgets import QMessageBox
 
-from solver import __version__
-
-CAUTIONS = (
-    "A boundary tuned by eye on training points is not a validated model.",
-    "Validate on held-out data before relying on it.",
-    "Where the classifier decides about people, parts or patients, follow local "
-    "regulations and licensed practice.",
-)
-
+from solver import CAUTIONS, __version__
 
 def about_text() -> str:
     items = "".join(f"<li>{c}</li>" for c in CAUTIONS)

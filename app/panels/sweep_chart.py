@@ -11,14 +11,16 @@ import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import Qt, Signal
 
+from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, STATUS_TEXT
+
 STALE_PEN = pg.mkPen((170, 170, 170), width=1, style=Qt.DashLine)
 CURVES = {  # plot -> [(attribute or status, legend text, colour)]
     "error": [("training_error", "training error", (40, 90, 200)),
               ("cv_error", "cross-validated error", (200, 60, 40))],
     "support vectors": [("n_support", "all", (60, 60, 60)),
-                        ("on_margin", "on the margin", (30, 150, 80)),
-                        ("inside", "inside the margin", (220, 150, 30)),
-                        ("misclassified", "misclassified", (190, 40, 120))],
+                        (ON_MARGIN, STATUS_TEXT[ON_MARGIN], (30, 150, 80)),
+                        (INSIDE, STATUS_TEXT[INSIDE], (220, 150, 30)),
+                        (MISCLASSIFIED, STATUS_TEXT[MISCLASSIFIED], (190, 40, 120))],
     "margin width": [("margin_width", "2/|w|", (90, 60, 170))],
     "objective terms": [("half_norm_w2", "1/2 |w|^2", (40, 120, 160)),
                         ("penalty_term", "sum C_i xi_i", (170, 90, 40))],

@@ -177,14 +177,28 @@ class FileActions(QObject):
         from solver.files import write_points_csv
         return self._write(write_points_csv, path, result)
 
-    def export_model(self, path=None) -> bool:
-        result = self._fitted("the model card")
+    def export_classifier(self, path=None) -> bool:
+        result = self._fitted("the classifier")
         path = result is not None and (path or self._ask_save(
-            "Export model", "Model card (*.json)", f"{self._stem()}.model.json"))
+            "Export classifier", "Classifier file (*.json)", f"{self._stem()}.classifier.json"))
         if not path:
             return False
-        from solver.files import write_model_card
-        return self._write(write_model_card, path, result)
+        from solver.files import write_classifier
+        cross_validation = self._cross_validation(result)
+        return self._write(lambda p, data, fitted: write_classifier(p, data, fitted,
+                                                                    cross_validation),
+                           path, result)
+
+    def _cross_validation(self, result) -> dict | None:
+        """The sweep's cross-validated error at this C, when a sweep of these points exists."""
+        from app.document.sweep_store import sweep_store
+        sweep = sweep_store(self.document).current_for(result.X, result.y, result.config)
+        estimate = None if sweep is None or result.config.hard_margin else \
+            sweep.cv_at(result.config.C)
+        if estimate is None:
+            return None
+        return {"error": estimate.error, "standard_error": estimate.standard_error,
+                "folds": sweep.folds, "seed": sweep.seed}
 
     def _write(self, writer, path, result) -> bool:
         try:

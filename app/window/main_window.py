@@ -130,7 +130,7 @@ class MainWindow(QMainWindow):
         file_menu.addSeparator()
         self._action(file_menu, "Export picture\u2026", lambda: files.export_picture(), "Ctrl+E")
         self._action(file_menu, "Export points table\u2026", lambda: files.export_points())
-        self._action(file_menu, "Export model\u2026", lambda: files.export_model())
+        self._action(file_menu, "Export classifier\u2026", lambda: files.export_classifier())
         file_menu.addSeparator()
         self._action(file_menu, "Quit", self.close, QKeySequence.Quit)
 

@@ -37,7 +37,7 @@ FORMAT_VERSION = CURRENT_VERSION
 class Experiment:
     dataset: Dataset
     config: FitConfig
-    results: dict | None         # the stored figures (see results_to_dict), None if unfitted
+    results: dict | None         # the stored figures (FitResult.to_dict), None if unfitted
     note: str | None
     written: dict                # provenance: at, slackline, python, numpy, cvxopt, platform
     format_version: int = FORMAT_VERSION   # as found in the file, before migration
@@ -46,44 +46,6 @@ class Experiment:
 
 
 # -- writing -------------------------------------------------------------------
-def results_to_dict(result) -> dict:
-    """The figures of a FitResult as stored in an experiment file."""
-    model = result.model
-    return {
-        "w": None if result.w is None else [float(v) for v in result.w],
-        "b": float(result.b),
-        "weight_norm": float(result.weight_norm),
-        "margin_width": _finite(result.margin_width),
-        "objective": {"primal": float(result.primal_objective),
-                      "dual": float(result.dual_objective),
-                      "gap": _finite(result.duality_gap),
-                      "regularisation": _finite(result.half_norm_w2),
-                      "penalty": _finite(result.penalty_term)},
-        "support": [int(i) for i in result.support],
-        "alpha": result.alpha.astype(float).tolist(),
-        "slack": result.slack.astype(float).tolist(),
-        "decision": result.decision.astype(float).tolist(),
-        "status": [str(s) for s in result.status],
-        "counts": {str(k): int(v) for k, v in
-                   {s: result.count(s) for s in ("outside", "on_margin", "inside",
-                                                 "misclassified")}.items()},
-        "training_error": _finite(result.training_error),
-        "kkt_residuals": {k: _finite(v) for k, v in result.kkt.to_dict().items()},
-        "solver": {"iterations": int(result.iterations), "rounds": int(result.rounds),
-                   "seconds": float(result.seconds), "converged": bool(result.converged),
-                   "status": str(result.solver_status)},
-        "model": {
-            "kernel": model.kernel, "gamma": float(model.gamma), "degree": int(model.degree),
-            "offset": float(model.offset), "shift": _floats(model.shift),
-            "scale": _floats(model.scale), "b": float(model.b),
-            "feature_weights": _floats(model.feature_weights),
-            "support_vectors": (None if model.support_vectors is None
-                                else np.asarray(model.support_vectors, float).tolist()),
-            "coefficients": _floats(model.coefficients),
-        },
-    }
-
-
 def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=None,
                        heldout=None) -> dict:
     """The complete document (checksum included) for ``dataset`` fitted with ``config``."""
@@ -127,7 +89,7 @@ def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=No
         },
         "points": points,
         "config": config.to_dict(),
-        "results": None if result is None else results_to_dict(result),
+        "results": None if result is None else result.to_dict(),
     }
     if heldout is not None:          # a heldout_points.heldout_section(...)
         document["heldout"] = heldout
@@ -327,15 +289,6 @@ def _key(label):
     if isinstance(label, float) and label.is_integer():
         return int(label)
     return label
-
-
-def _finite(value):
-    value = float(value)
-    return value if math.isfinite(value) else None
-
-
-def _floats(array):
-    return None if array is None else [float(v) for v in np.asarray(array, dtype=float).ravel()]
 
 
 def _count(problems: list[str]) -> str:

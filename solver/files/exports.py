@@ -1,17 +1,9 @@
-"""Exports for use outside Slackline: a per-point CSV table and a JSON model card.
+"""The per-point table (CSV) for use outside Slackline.
 
-Both take a Dataset and either a FitResult or the stored figures of an
+It takes a Dataset and either a FitResult or the stored figures of an
 experiment (``Experiment.results``), so the window and the headless
-``slackline export`` write the same files.
-
-Model card: everything needed to apply the classifier elsewhere, with numpy
-alone (the formula is in the card itself):
-
-    u = (x - scaling.shift) / scaling.scale                 elementwise
-    linear: f(x) = w . x + b                                 (original units)
-    polynomial: f(x) = b + sum_t coefficients_t * u1**powers_t[0] * u2**powers_t[1]
-    rbf:    f(x) = b + sum_j coefficients_j * exp(-gamma * |u - support_vectors_j|^2)
-    class:  classes.positive when f(x) >= 0, else classes.negative
+``slackline export`` write the same file.  The classifier file is
+solver.files.classifier.
 """
 
 from __future__ import annotations
@@ -19,11 +11,9 @@ from __future__ import annotations
 import csv
 import numpy as np
 
-from solver.files.atomic import atomic_open, atomic_write_text
+from solver.files.atomic import atomic_open
 from solver.files.dataset import Dataset
 from solver.errors import InputError
-from solver.files.experiment import json_text, provenance, results_to_dict
-from solver import kernels
 
 # OWASP, "CSV Injection": cells starting with these characters are read as
 # formulas by spreadsheets; prefixing a single quote makes them plain text.
@@ -31,15 +21,6 @@ FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 
 POINT_COLUMNS = ("point", "line", "{0}", "{1}", "label", "sign", "decision",
                  "functional_margin", "distance", "alpha", "slack", "status")
-
-SCALING_FORMULA = "u = (x - scaling.shift) / scaling.scale, elementwise, x = [feature 1, feature 2]"
-CLASS_FORMULA = "class:  classes.positive when f(x) >= 0, otherwise classes.negative"
-
-
-def formula(kernel_name: str) -> list[str]:
-    """How to evaluate the exported classifier, in words and symbols."""
-    return [SCALING_FORMULA, kernels.get(kernel_name).formula, CLASS_FORMULA]
-
 
 def neutralise(cell):
     """A text cell that a spreadsheet would run as a formula, made plain text."""
@@ -51,7 +32,7 @@ def neutralise(cell):
 # -- per-point table -----------------------------------------------------------
 def points_table(dataset: Dataset, result) -> tuple[list[str], list[list]]:
     """Header and rows of the per-point table (values not yet neutralised)."""
-    figures = _figures(dataset, result)
+    figures = figures_of(dataset, result)
     n = len(dataset)
     decision = np.asarray(figures["decision"], dtype=float)
     functional = dataset.y * decision                        # y_i f(x_i)
@@ -78,40 +59,12 @@ def write_points_csv(path, dataset: Dataset, result) -> None:
             writer.writerow([neutralise(cell) for cell in row])
 
 
-# -- model card ----------------------------------------------------------------
-def model_card(dataset: Dataset, result) -> dict:
-    """What it takes to apply the fitted classifier anywhere, as plain JSON."""
-    figures = _figures(dataset, result)
-    model = figures["model"]
-    card = {
-        "format": "slackline-model-card",
-        "version": 1,
-        "written": provenance(),
-        "features": [{"name": n, "unit": u} for n, u in zip(dataset.feature_names,
-                                                             dataset.units)],
-        "label_name": dataset.label_name,
-        "classes": {"positive": dataset.label_for(1), "negative": dataset.label_for(-1)},
-        "kernel": model["kernel"],
-        "scaling": {"shift": model["shift"], "scale": model["scale"]},
-    }
-    card.update(kernels.get(model["kernel"]).export_terms(model))
-    if model["kernel"] == "linear":
-        card.update(w=figures["w"], b=figures["b"])
-    else:
-        card["b"] = model["b"]
-    card["formula"] = formula(model["kernel"])
-    return card
-
-
-def write_model_card(path, dataset: Dataset, result) -> None:
-    atomic_write_text(path, json_text(model_card(dataset, result)))
-
-
 # -- helpers -------------------------------------------------------------------
-def _figures(dataset: Dataset, result) -> dict:
+def figures_of(dataset: Dataset, result) -> dict:
+    """The stored-figures dict of ``result`` (a FitResult or such a dict), checked against the data."""
     if result is None:
         raise InputError("there is no fit to export yet; fit the points first")
-    figures = result if isinstance(result, dict) else results_to_dict(result)
+    figures = result if isinstance(result, dict) else result.to_dict()
     if len(figures["decision"]) != len(dataset):
         raise InputError(f"the figures cover {len(figures['decision'])} points but the data "
                          f"set has {len(dataset)}; refit before exporting")

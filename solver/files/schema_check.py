@@ -13,6 +13,7 @@ from functools import lru_cache
 from jsonschema import Draft202012Validator
 
 from solver import kernels
+from solver.result import STATUSES
 from solver.files.bundled import resource_json
 
 MAX_PROBLEMS = 100  # listed one by one; the rest are counted
@@ -31,6 +32,7 @@ def _schema_for(kernel_names: tuple[str, ...]) -> dict:
     schema = copy.deepcopy(resource_json("experiment.schema.json"))
     for where in (schema["properties"]["config"], schema["$defs"]["model"]):
         where["properties"]["kernel"]["enum"] = list(kernel_names)
+    schema["$defs"]["results"]["properties"]["status"]["items"]["enum"] = list(STATUSES)
     return schema
 
 
@@ -65,7 +67,7 @@ def schema_problems(document) -> list[str]:
 
 _NUMBER = (int, float)
 _LABEL = (str, int, float, bool)
-_STATUS = frozenset(["outside", "on_margin", "inside", "misclassified"])
+_STATUS = frozenset(STATUSES)
 
 
 def _trimmed(document):

@@ -21,6 +21,7 @@ import numpy as np
 from solver.errors import InputError
 from solver.model import DecisionModel
 from solver.result import _frozen
+from solver.study.agreement import RELATIVE, Agreement
 
 DATA_UNITS = "data units"
 FEATURE_SPACE = "feature space"
@@ -159,3 +160,24 @@ def _labels_by_sign(label_mapping: dict) -> dict:
         raise InputError(f"the label mapping must name one label for +1 and one for -1; "
                          f"got {label_mapping!r}")
     return by_sign
+
+
+def heldout_agreement(stored: dict, points, label_mapping: dict, result) -> list:
+    """``slackline check`` on a stored held-out section: its decision values and
+    confusion counts against those of ``result`` (a fresh fit) on the same points.
+
+    held-out decision   agrees within 1e-6 * max(1, max |stored f|), as the
+                        training points' decision values do
+    held-out confusion  identical counts
+    """
+    decision = result.decision_function(points.X) if len(points.X) else np.zeros(0)
+    stored_decision = np.asarray(stored["decision"], dtype=float)
+    f_scale = max(1.0, float(np.max(np.abs(stored_decision), initial=0.0)))
+    largest = (float(np.max(np.abs(stored_decision - decision), initial=0.0))
+               if stored_decision.shape == decision.shape else float("inf"))
+    counts = confusion(points.signs, np.where(decision >= 0, 1, -1), label_mapping).to_dict()
+    keys = ("true_positive", "false_positive", "true_negative", "false_negative")
+    differ = [k for k in keys if counts[k] != stored["confusion"][k]]
+    detail = "; ".join(f"{k} {stored['confusion'][k]} -> {counts[k]}" for k in differ)
+    return [Agreement("held-out decision", largest, RELATIVE * f_scale),
+            Agreement("held-out confusion", len(differ), 0, detail)]

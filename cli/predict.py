@@ -8,13 +8,11 @@ counts on these rows.  The classifier is the one stored in the experiment
 
 from __future__ import annotations
 
-import csv
-import io
 import json
 import sys
 
 from solver import CAUTION_LINE, InputError
-from solver.files import atomic_write_text, load_experiment, neutralise, read_new_rows
+from solver.files import atomic_write_text, load_experiment, read_new_rows, scored_csv
 from solver.study import Classifier, confusion, score
 from cli.evidence_io import refuse_overwriting_inputs
 
@@ -83,21 +81,7 @@ def as_json(rows, scores, counts, dataset) -> dict:
 
 
 def as_csv(rows, scores, dataset) -> str:
-    stream = io.StringIO()
-    writer = csv.writer(stream, lineterminator="\n")
-    header = ["row", *dataset.feature_names, "decision", "label", "distance", "in_band"]
-    if rows.labels is not None:
-        header.append("true_label")
-    writer.writerow([neutralise(cell) for cell in header])
-    for i, line in enumerate(rows.lines):
-        # numbers as floats (full precision, never neutralised); only text is
-        cells = [line, float(rows.X[i, 0]), float(rows.X[i, 1]), float(scores.decision[i]),
-                 scores.labels[i], float(scores.distance[i]),
-                 "yes" if scores.in_band[i] else "no"]
-        if rows.labels is not None:
-            cells.append(rows.labels[i])
-        writer.writerow([neutralise(cell) for cell in cells])
-    return stream.getvalue()
+    return scored_csv(rows, scores, dataset.feature_names)
 
 
 def as_text(rows, scores, counts, dataset, experiment_name) -> str:

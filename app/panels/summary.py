@@ -13,6 +13,8 @@ ROWS = (
     ("support", "support vectors"),
     ("breakdown", "  on / inside / misclassified"),
     ("error", "training error"),
+    ("heldout", "held-out error"),
+    ("confusion", "  TP / FP / TN / FN"),
     ("regularisation", "\u00bd|w|\u00b2"),
     ("penalty", "\u03a3 C\u1d62\u03be\u1d62"),
     ("gap", "duality gap"),
@@ -47,6 +49,11 @@ class Summary(QWidget):
     def text(self, key: str) -> str:
         return self.values[key].text()
 
+    def _heldout(self, set_):
+        error, counts = _heldout_lines(self.document)
+        set_("heldout", error)
+        set_("confusion", counts)
+
     def refresh(self):
         doc, result = self.document, self.document.result
         if result is None:
@@ -67,6 +74,7 @@ class Summary(QWidget):
                           f"{result.count(MISCLASSIFIED)}")
         wrong = int(round(result.training_error * len(result.y)))
         set_("error", f"{result.training_error:.1%}  ({wrong} of {len(result.y)})")
+        self._heldout(set_)
         set_("regularisation", number(result.half_norm_w2))
         set_("penalty", number(result.penalty_term))
         set_("gap", f"{result.duality_gap:.2e}")
@@ -78,6 +86,18 @@ class Summary(QWidget):
         else:
             C = "hard margin" if result.config.hard_margin else f"C = {number(result.config.C)}"
             self.values["state"].setText(f"current: {result.config.kernel}, {C}")
+
+
+def _heldout_lines(document):
+    """(held-out error, confusion counts) texts from the document's evidence, if any."""
+    from app.document.evidence import evidence_of
+    counts = evidence_of(document).counts
+    if counts is None:
+        return "\u2014 (none held out)", "\u2014"
+    wrong = counts.false_positive + counts.false_negative
+    return (f"{counts.error:.1%}  ({wrong} of {counts.rows})",
+            f"{counts.true_positive} / {counts.false_positive} / {counts.true_negative} / "
+            f"{counts.false_negative}  (+1 = {counts.positive_label})")
 
 
 def _selectable():

@@ -15,6 +15,7 @@ from app.canvas import geometry
 from app.canvas.canvas import Canvas
 from app.panels.controls import Controls
 from app.document.document import Document
+from app.window.evidence_actions import install_evidence
 from app.window.file_actions import FileActions
 from app.panels.inspector import Inspector
 from app.panels.points_table import PointsTable
@@ -59,6 +60,7 @@ class MainWindow(QMainWindow):
         self.recovery = RecoveryWriter(self.document, self)
         self._build_status_bar()
         self._build_menus()
+        self.evidence_actions = install_evidence(self)   # scored rows, held-out, influence
         self.setAcceptDrops(True)
         self.document.dirty_changed.connect(self._update_title)
         self.document.path_changed.connect(self._update_title)
@@ -273,6 +275,7 @@ class MainWindow(QMainWindow):
         self.save_settings()
         self.recovery.timer.stop()
         self.recovery.discard()
+        self.evidence_actions.evidence.shutdown()
         self.document.shutdown()
         event.accept()
 

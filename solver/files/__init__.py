@@ -14,6 +14,7 @@ from solver.files.classifier import classifier_document, write_classifier
 from solver.files.exports import neutralise, points_table, write_points_csv
 from solver.files.heldout_points import HeldOutPoints, heldout_from_section, heldout_section
 from solver.files.new_rows import NewRows, read_new_rows
+from solver.files.scored_table import scored_csv, scored_table, write_scored_csv
 from solver.files.tables import (EXCEL_SUFFIXES, TAB_SUFFIXES, TABLE_FILTER, TABLE_SUFFIXES,
                                  TablePreview, preview_table, read_table)
 
@@ -23,6 +24,7 @@ __all__ = [
     "experiment_to_dict", "json_text", "load_experiment", "provenance",
     "save_experiment", "classifier_document", "write_classifier", "points_table",
     "write_points_csv", "neutralise", "HeldOutPoints", "heldout_from_section",
-    "heldout_section", "NewRows", "read_new_rows",
+    "heldout_section", "NewRows", "read_new_rows", "scored_csv", "scored_table",
+    "write_scored_csv",
     "EXCEL_SUFFIXES", "TAB_SUFFIXES", "TABLE_FILTER", "TABLE_SUFFIXES", "TablePreview", "preview_table", "read_table",
 ]

@@ -53,6 +53,27 @@ class PointInfluence:
     model: DecisionModel            # the decision function without the point
 
     @property
+    def w(self) -> np.ndarray | None:
+        """w of the fit without the point, original units (linear kernel), else None."""
+        if self.angle_change is None:
+            return None
+        m = self.model
+        return scaling.weights_in_original_units(m.feature_weights, m.b, m.shift, m.scale)[0]
+
+    @property
+    def b(self) -> float:
+        """b of the fit without the point (original units for linear)."""
+        m = self.model
+        if self.angle_change is None:
+            return float(m.b)
+        return float(scaling.weights_in_original_units(m.feature_weights, m.b, m.shift,
+                                                       m.scale)[1])
+
+    def decision_function(self, points) -> np.ndarray:
+        """f of the fit without the point, anywhere (original units)."""
+        return self.model.decision_function(points)
+
+    @property
     def size(self) -> float:
         return abs(self.angle_change) if self.angle_change is not None \
             else self.largest_decision_change

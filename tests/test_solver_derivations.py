@@ -64,8 +64,9 @@ def overlapping():
     return X, np.r_[-np.ones(40), np.ones(40)]
 
 
-def test_projection_identity_w_dot_x_equals_p_times_norm_w(overlapping):
-    # w.x = |w| |x| cos(theta) = p |w| with p the projection of x onto w/|w|.
+def test_w_dot_x_is_the_norm_of_w_times_the_signed_length_of_x_along_w(overlapping):
+    # w.x = |w| |x| cos(theta), and |x| cos(theta) is the signed length of x along
+    # the direction w/|w|, which the result reports as its projection.
     result = fit(*overlapping, FitConfig(C=1.0))
     X = overlapping[0]
     np.testing.assert_allclose(X @ result.w, result.projection * np.linalg.norm(result.w),
@@ -102,6 +103,11 @@ def _iris_pair(first, second):
     keep = np.isin(iris.target, (first, second))
     return iris.data[keep][:, 2:4], np.where(iris.target[keep] == second, 1, -1)
 
+
+# UCI Machine Learning Repository, Iris data set description (iris.names, after
+# Fisher 1936): "One class is linearly separable from the other 2; the latter
+# are NOT linearly separable from each other" (quoted from memory).  Setosa is
+# the separable class; on the petal measures alone the same holds.
 
 def test_iris_setosa_and_versicolor_are_separable_on_petal_measures():
     result = fit(*_iris_pair(0, 1), HARD)

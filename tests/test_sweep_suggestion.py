@@ -32,7 +32,9 @@ def test_one_standard_error_range_runs_both_ways_from_the_best_C():
     s = sweep.suggestion
     assert s.best_C == 1 and s.best_error == pytest.approx(0.25)
     assert s.threshold == pytest.approx(0.278868, abs=1e-6)
-    assert s.largest_C_within_one_se == 10   # the rule as the issue states it
+    # the one-standard-error rule: Hastie, Tibshirani & Friedman, The Elements of
+    # Statistical Learning, 2nd ed., sec. 7.10 (the range runs to larger C as well)
+    assert s.largest_C_within_one_se == 10
     assert s.smallest_C_within_one_se == 1   # nothing smaller is within: 0.40 > 0.2789
 
 

@@ -6,22 +6,17 @@ from functools import lru_cache
 
 from solver.files import resource_json
 
-_FALLBACK = {
-    "positive": "#2166ac", "negative": "#e08214",
-    "positive_symbol": "o", "negative_symbol": "t",
-    "boundary": "#1a1a1a", "band": "#4d4d4d", "weight_vector": "#6a3d9a",
-    "slack": "#b2182b", "support_ring": "#1a1a1a", "selection": "#00a884",
-    "ghost": "#9e9e9e", "shade_positive": "#92c5de", "shade_negative": "#fdb863",
-    "background": "#ffffff", "axis": "#404040",
-}
+# every key the canvas reads; resources/palette.json gives the values
+KEYS = ("positive", "negative", "positive_symbol", "negative_symbol", "marker_outline",
+        "boundary", "band", "weight_vector", "slack", "support_ring", "selection", "ghost",
+        "shade_positive", "shade_negative", "background", "axis")
 
 
 @lru_cache(maxsize=1)
 def palette() -> dict:
-    """The palette, falling back to built-in values for any key the file lacks."""
-    colours = dict(_FALLBACK)
-    colours.update({k: v for k, v in resource_json("palette.json").items() if k in _FALLBACK})
-    return colours
+    """The palette of resources/palette.json (a missing key is a KeyError here, at start)."""
+    stored = resource_json("palette.json")
+    return {key: stored[key] for key in KEYS}
 
 
 def class_colour(sign: int) -> str:

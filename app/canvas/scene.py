@@ -75,7 +75,7 @@ class SceneItems:
         self.points = {}
         for sign in (1, -1):
             item = pg.ScatterPlotItem(symbol=class_symbol(sign), size=9,
-                                      pen=pg.mkPen("#ffffff", width=0.8),
+                                      pen=pg.mkPen(colours["marker_outline"], width=1.0),
                                       brush=pg.mkBrush(class_colour(sign)), name=None)
             item.setZValue(5)
             _pass_clicks(item)  # the view box edits points
@@ -106,7 +106,7 @@ class SceneItems:
         for sign in (1, -1):
             sample = pg.ScatterPlotItem(symbol=class_symbol(sign), size=9,
                                         brush=pg.mkBrush(class_colour(sign)),
-                                        pen=pg.mkPen("#ffffff", width=0.8))
+                                        pen=pg.mkPen(palette()["marker_outline"], width=1.0))
             self.legend_class[sign] = sample
             self.legend.addItem(sample, "+1" if sign > 0 else "-1")
         for item in (self.rings, self.boundary, self.band, self.weight, self.slack):

@@ -101,3 +101,25 @@ def test_the_influence_view_ranks_support_vectors_and_draws_the_boundary_without
     assert (f"Leaving this point out rotates the boundary by "
             f"{abs(top.angle_change):.3g} degrees") in reading
     assert math.isfinite(top.angle_change)
+
+
+def test_held_out_points_are_saved_with_the_experiment_and_come_back_on_open(window, qtbot,
+                                                                           tmp_path):
+    from solver.files import load_experiment
+    data = gauge_points(overlap=True)
+    load_points(window, qtbot, data)
+    click(qtbot, window, *data.X[5])
+    qtbot.keyClick(window, Qt.Key_H, Qt.ControlModifier)
+    settle(window, qtbot)
+    path = tmp_path / "gauges.experiment.json"
+    assert window.files.save_to(path)
+    stored = load_experiment(path).heldout
+    assert stored["points"][0]["x"] == data.X[5].tolist()
+    # expected: the fit's own decision value at the held-out point
+    assert stored["decision"][0] == window.document.result.decision_function(data.X[[5]])[0]
+    window.files.new()
+    assert window.evidence_actions.evidence.heldout is None
+    assert window.files.open_path(path)
+    settle(window, qtbot)
+    np.testing.assert_allclose(window.evidence_actions.evidence.heldout.X, data.X[[5]])
+    assert window.summary.text("heldout") != "\u2014 (none held out)"

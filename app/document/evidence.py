@@ -14,7 +14,7 @@ import numpy as np
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtGui import QUndoCommand
 
-from solver.files import HeldOutPoints, read_new_rows
+from solver.files import HeldOutPoints, heldout_from_section, heldout_section, read_new_rows
 from solver.study import confusion, influence_of_support_vectors, score
 
 from app.document.background import BackgroundTask
@@ -55,6 +55,20 @@ class Evidence(QObject):
     def set_heldout(self, heldout):
         self.heldout = heldout if heldout is not None and len(heldout) else None
         self.refresh()
+
+    def reset(self, stored_heldout=None):
+        """A new document: no scored rows; the held-out points an experiment file stored."""
+        self.rows = self.scores = None
+        self.heldout = None
+        if stored_heldout is not None:
+            self.heldout = heldout_from_section(stored_heldout, self.document.label_mapping)
+        self.refresh()
+
+    def heldout_section(self):
+        """The held-out points with the current fit's figures, as experiment files store them."""
+        if self.heldout is None or self.counts is None:
+            return None
+        return heldout_section(self.heldout, self.heldout_scores.decision, self.counts.to_dict())
 
     def clear_rows(self):
         self.rows = self.scores = None

@@ -15,6 +15,8 @@ from PySide6.QtWidgets import QFileDialog, QMessageBox
 from solver import SlacklineError
 from solver.files import TABLE_FILTER, TABLE_SUFFIXES
 
+from app.document.evidence import evidence_of
+
 EXPERIMENT_FILTER = "Slackline experiments (*.json)"
 MAX_RECENT = 8
 
@@ -65,6 +67,7 @@ class FileActions(QObject):
     def new(self):
         if self.confirm_discard():
             self.document.new()
+            evidence_of(self.document).reset()
             self.canvas.fit_view_to_data()
 
     def open(self):
@@ -89,6 +92,7 @@ class FileActions(QObject):
             return False
         self.document.load(experiment.dataset, experiment.config, path=path,
                            note=experiment.note)
+        evidence_of(self.document).reset(experiment.heldout)
         self.window.match_axes_to_data()
         self._add_recent(path)
         self._remember_folder(path)
@@ -128,7 +132,8 @@ class FileActions(QObject):
         doc.wait_for_solve(10000)  # save the figures of these very points when they are ready
         result = doc.current_result()
         try:
-            save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config)
+            save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config,
+                            heldout=evidence_of(doc).heldout_section() if result else None)
         except SlacklineError as exc:
             self._error("Cannot save the experiment", exc)
             return False

@@ -22,7 +22,8 @@ def add_evidence_arguments(parser) -> None:
                         help="labelled rows kept out of the fit: report the held-out error, "
                              "confusion counts and close calls (--save stores them)")
     parser.add_argument("--influence", action="store_true",
-                        help="for each support vector, what leaving it out would change")
+                        help="for each support vector, what leaving it out would change (one "
+                             "leave-out fit each: about 2 s at 10,000 points)")
 
 
 @dataclass(frozen=True)

@@ -37,6 +37,7 @@ class Evidence(QObject):
         self.ghost = None           # PointInfluence drawn as a ghost, or None
         self._influence_of = None   # the result the influence belongs to
         self._task = None
+        self._tasks = []            # every task still running (waited for at shutdown)
         document.result_changed.connect(self.refresh)
 
     # -- reading files (solver.files does the reading; errors propagate) ------------
@@ -106,9 +107,11 @@ class Evidence(QObject):
             self._task.cancel()
         heldout = None if self.heldout is None else self.heldout.X
         task = BackgroundTask(lambda progress, cancel: influence_of_support_vectors(
-            result, heldout=heldout), self)
+            result, heldout=heldout, should_stop=cancel.is_set), self)
         task.succeeded.connect(lambda influence: self._influence_ready(result, influence))
+        task.finished.connect(lambda: self._tasks.remove(task) if task in self._tasks else None)
         self._task = task
+        self._tasks.append(task)
         task.start()
 
     def wait_for_influence(self, timeout_ms=30000) -> bool:
@@ -116,7 +119,7 @@ class Evidence(QObject):
         return self._task is None or self._task.wait(timeout_ms)
 
     def _influence_ready(self, result, influence):
-        if result is not self.document.current_result():
+        if influence is None or result is not self.document.current_result():
             return                   # the fit moved on while it was computed
         self.influence, self._influence_of = influence, result
         self.ghost = None
@@ -130,8 +133,9 @@ class Evidence(QObject):
             self.ghost_changed.emit()
 
     def shutdown(self):
-        if self._task is not None:
-            self._task.wait(30000)
+        for task in list(self._tasks):
+            task.cancel()
+            task.wait(30000)
 
 
 class HoldOutCommand(QUndoCommand):

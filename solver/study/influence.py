@@ -132,10 +132,12 @@ class Influence:
         return out
 
 
-def influence_of_support_vectors(result, heldout=None) -> Influence:
+def influence_of_support_vectors(result, heldout=None, should_stop=None) -> Influence | None:
     """The effect of leaving out each support vector of ``result`` (a FitResult).
 
     ``heldout``: optional n_h x 2 points (original units) whose flips to report.
+    ``should_stop``: optional callable checked between support vectors; when it
+    returns True the work stops and None is returned (a newer fit replaced it).
     """
     config, model = result.config, result.model
     shift, scale = model.shift, model.scale
@@ -158,6 +160,8 @@ def influence_of_support_vectors(result, heldout=None) -> Influence:
     base = _Geometry.of(result, f0, walk)
     entries = []
     for c in result.support.tolist():
+        if should_stop is not None and should_stop():
+            return None
         try:
             S, alpha_S, b_new, g_new = walk.without(c)
             method = "path"

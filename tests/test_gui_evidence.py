@@ -123,3 +123,26 @@ def test_held_out_points_are_saved_with_the_experiment_and_come_back_on_open(win
     settle(window, qtbot)
     np.testing.assert_allclose(window.evidence_actions.evidence.heldout.X, data.X[[5]])
     assert window.summary.text("heldout") != "\u2014 (none held out)"
+
+
+def test_the_report_and_compare_view_give_the_held_out_check_beside_the_training_error(
+        window, qtbot, tmp_path):
+    pypdf = __import__("pytest").importorskip("pypdf")
+    data = gauge_points(overlap=True)
+    load_points(window, qtbot, data)
+    for i in (2, 14, 19):
+        click(qtbot, window, *data.X[i], Qt.ControlModifier)
+    qtbot.keyClick(window, Qt.Key_H, Qt.ControlModifier)
+    settle(window, qtbot)
+    result = window.document.result
+    predicted = result.predict(data.X[[2, 14, 19]])
+    (tn, fp), (fn, tp) = confusion_matrix(data.y[[2, 14, 19]], predicted, labels=[-1, 1])
+    expected = f"On 3 held-out points the error is {(fp + fn) / 3:.1%}"
+    compare = window.optional_panels["ComparePanel"]
+    window.document.pin_current()
+    assert expected in compare.summary.text()
+    path = compare.export_report_to(tmp_path / "report.pdf")
+    text = " ".join(" ".join(page.extract_text().split())
+                    for page in pypdf.PdfReader(str(path)).pages)
+    assert "Held-out check" in text and expected in text
+    assert f"training error of {result.training_error:.1%}" in text

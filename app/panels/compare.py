@@ -12,10 +12,11 @@ from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMessageBox, QP
 from solver.study import compare
 from solver.study import LEAVE_ONE_OUT, cross_validate, points_fingerprint
 from solver import SlacklineError
-from solver.study import summary
+from solver.study import heldout_sentence, summary
 from solver import STATUS_TEXT
 
 from app.document.background import BackgroundTask
+from app.document.evidence import evidence_of
 from app.document.sweep_store import sweep_store
 
 QUICK_FOLDS = 5
@@ -95,6 +96,9 @@ class ComparePanel(QWidget):
         text = summary(self.comparison)
         if document.result_is_stale:
             text += " (The current fit is out of date: the last solve failed.)"
+        counts = evidence_of(document).counts
+        if counts is not None:
+            text += " " + heldout_sentence(counts, current.training_error)
         self.summary.setText(text)
         self._fill_table()
         self._fill_changes()
@@ -177,7 +181,8 @@ class ComparePanel(QWidget):
         if current is not None:
             sweep = self.store.current_for(current.X, current.y, current.config)
         return export_report(path, document.dataset(), current, pinned, sweep,
-                             self.cv_for(pinned), self.cv_for(current))
+                             self.cv_for(pinned), self.cv_for(current),
+                             heldout=evidence_of(document).counts)
 
 
 def _key(result):

@@ -42,6 +42,9 @@ class EvidenceActions(QObject):
         self._menus(docks)
         self.evidence.changed.connect(window.summary.refresh)
         self.evidence.influence_changed.connect(window.inspector.refresh)
+        compare_panel = window.optional_panels.get("ComparePanel")
+        if compare_panel is not None:
+            self.evidence.changed.connect(compare_panel.refresh)
 
     def _menus(self, docks):
         window = self.window

@@ -121,6 +121,16 @@ class Confusion:
                 f"false negative ({pos} predicted {neg}): {self.false_negative}"]
 
 
+def heldout_sentence(counts: Confusion, training_error: float) -> str:
+    """The held-out check in words, beside the training error (reports, compare view)."""
+    wrong = counts.false_positive + counts.false_negative
+    return (f"On {counts.rows} held-out point{'s' if counts.rows != 1 else ''} the error is "
+            f"{counts.error:.1%} ({wrong} wrong: {counts.false_positive} {counts.negative_label} "
+            f"taken for {counts.positive_label}, {counts.false_negative} "
+            f"{counts.positive_label} taken for {counts.negative_label}), beside a training "
+            f"error of {training_error:.1%}.")
+
+
 def score(fitted, points, label_mapping: dict) -> Scores:
     """Apply a fit (a FitResult or a Classifier) to ``points`` (n x 2, original units)."""
     classifier = fitted if isinstance(fitted, Classifier) else Classifier.from_result(fitted)

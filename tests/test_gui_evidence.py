@@ -78,7 +78,7 @@ def test_the_influence_view_ranks_support_vectors_and_draws_the_boundary_without
         window, qtbot):
     data = gauge_points(overlap=True)
     load_points(window, qtbot, data)
-    window.docks["Influence"].show()
+    window.workspace.show_study("Influence")
     evidence, panel = window.evidence_actions.evidence, window.evidence_actions.influence_panel
     qtbot.waitUntil(lambda: evidence.influence is not None, timeout=20000)
     result = window.document.result

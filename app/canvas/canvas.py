@@ -146,7 +146,10 @@ class Canvas(pg.PlotWidget):
             self.scene_items.legend.setVisible(bool(visible))
 
     def set_equal_axes(self, equal: bool):
+        x0, x1, y0, y1 = self.view_rect()
         self._view.setAspectLocked(bool(equal))
+        # re-apply the range: the lock alone takes effect only at the next pan or zoom
+        self._view.setRange(xRange=(x0, x1), yRange=(y0, y1), padding=0)
 
     def pixel_of(self, x: float, y: float) -> QPoint:
         """Viewport pixel of data coordinate (x, y) (for tests and tools)."""

@@ -27,9 +27,12 @@ PICTURE = (470, 360)
 
 
 def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=None,
-                  cv_after=None, title: str = "Support vector machine fit",
-                  heldout=None) -> Path:
-    """Write the one-page report to ``path`` (.pdf or .png) and return the path."""
+                  cv_after=None, title: str = "Support vector machine fit", note=None,
+                  edited: bool = False, heldout=None) -> Path:
+    """Write the one-page report to ``path`` (.pdf or .png) and return the path.
+
+    ``note`` is the experiment's note; ``edited`` says the points were changed
+    since they were imported from ``dataset.source``."""
     path = Path(path)
     suffix = path.suffix.lower()
     if suffix not in (".pdf", ".png"):
@@ -39,7 +42,7 @@ def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=Non
     from app.canvas.figure import ensure_application
     ensure_application()
     document = build_document(dataset, current, pinned, sweep, cv_before, cv_after, title,
-                              heldout=heldout)
+                              note=note, edited=edited, heldout=heldout)
     if suffix == ".pdf":
         writer = QPdfWriter(str(path))
         writer.setResolution(150)
@@ -77,13 +80,16 @@ def _paint_fitted(painter: QPainter, document: QTextDocument, width: float, heig
 
 
 def build_document(dataset, current, pinned=None, sweep=None, cv_before=None, cv_after=None,
-                   title="Support vector machine fit", heldout=None) -> QTextDocument:
+                   title="Support vector machine fit", note=None,
+                   edited=False, heldout=None) -> QTextDocument:
     """``heldout``: the current fit's Confusion on held-out points, if any."""
     from app.canvas.figure import draw_result
     doc = QTextDocument()
     doc.setPageSize(QSizeF(LAYOUT_WIDTH, 100000))
     doc.setTextWidth(LAYOUT_WIDTH)
-    parts = [f"<h2>{_e(title)}</h2>", f"<p>{_e(_data_line(dataset, current))}</p>"]
+    parts = [f"<h2>{_e(title)}</h2>", f"<p>{_e(_data_line(dataset, current, edited))}</p>"]
+    if note:
+        parts.append("<p><b>Note.</b> " + _e(note).replace("\n", "<br>") + "</p>")
     pictures = []
     if pinned is not None:
         doc.addResource(QTextDocument.ImageResource, QUrl("image://pinned"),
@@ -135,17 +141,25 @@ def _comparison_table(comparison) -> str:
     extra = (f"Support vectors joined: {len(comparison.joined)}, left: {len(comparison.left)}. "
              f"Points that changed status: {len(comparison.changes)}.")
     if not comparison.same_points:
-        extra += (f" The point sets differ: {len(comparison.added)} added, "
-                  f"{len(comparison.removed)} removed (matched by coordinates and label).")
+        extra += (f" The point sets differ: {len(comparison.moved)} moved, "
+                  f"{len(comparison.added)} added, {len(comparison.removed)} removed "
+                  f"(matched by coordinates and label).")
     return table + f"<p>{_e(extra)}</p>"
 
 
-def _data_line(dataset, result) -> str:
-    name = getattr(dataset, "source", None) or "points placed by hand"
+def _data_line(dataset, result, edited=False) -> str:
+    source = getattr(dataset, "source", None)
     checksum = getattr(dataset, "sha256", None)
-    check = (f"file SHA-256 {checksum}" if checksum else
-             f"checksum of the points {points_fingerprint(result.X, result.y)}")
     features = ", ".join(getattr(dataset, "feature_names", ("x1", "x2")))
+    points = f"checksum of the points {points_fingerprint(result.X, result.y)}"
+    if source and edited:
+        # the file's checksum describes the points as read, not these
+        origin = (f"edited since import from {source}" + (f" (file SHA-256 {checksum}, "
+                  f"which describes the points as imported, not these)" if checksum else ""))
+        return (f"Data set: {len(result.y)} points, {origin}; features {features}; "
+                f"{points}.")
+    name = source or "points placed by hand"
+    check = f"file SHA-256 {checksum}" if checksum else points
     return f"Data set: {name}; {len(result.y)} points; features {features}; {check}."
 
 

@@ -12,6 +12,7 @@ import pyqtgraph as pg
 from PySide6.QtCore import QRectF, Qt
 
 from app.canvas import geometry
+from app.canvas.scale_note import ScaleNote
 from app.canvas.palette import class_colour, class_symbol, palette
 
 KERNEL_GRID = 120   # contour and shading lattice for kernel fits
@@ -59,7 +60,8 @@ class SceneItems:
             plot.addItem(item, ignoreBounds=True)
             return item
 
-        self.ghost_boundary = line(colours["ghost"], 2, Qt.DashLine, -8, name="pinned fit")
+        self.ghost_boundary = line(colours["ghost"], 2, Qt.DashLine, -8,
+                                   name="pinned fit (ghost)")
         self.ghost_band = line(colours["ghost"], 1, Qt.DotLine, -8)
         self.band = line(colours["band"], 1.4, Qt.DashLine, -4, name="margin  f = \u00b11")
         self.boundary = line(colours["boundary"], 2.6, Qt.SolidLine, -3, name="boundary  f = 0")
@@ -71,6 +73,7 @@ class SceneItems:
         self.arrow.setZValue(-1)
         plot.addItem(self.arrow, ignoreBounds=True)
         self.arrow.hide()
+        self.scale_note = ScaleNote(plot, colours["weight_vector"])
 
         self.points = {}
         for sign in (1, -1):
@@ -138,6 +141,8 @@ class SceneItems:
             self.rings.setData([], [])
             self.shade.clear()
             self.arrow.hide()
+            self._arrow_tip = None
+            self.scale_note.update(None, None)
             return
         matches = len(result.y) == len(X) and np.array_equal(result.X, X)
         self._draw_field(result, rect)
@@ -166,6 +171,7 @@ class SceneItems:
         self.legend.addItem(self.slack, self.slack.name())
 
     def set_pinned(self, pinned, rect):
+        self._legend_lists_ghost(pinned is not None)
         if pinned is None:
             self.ghost_boundary.setData([], [])
             self.ghost_band.setData([], [])
@@ -173,6 +179,16 @@ class SceneItems:
         zero, band = self._level_sets(pinned, rect)
         self.ghost_boundary.setData(zero[:, 0], zero[:, 1])
         self.ghost_band.setData(band[:, 0], band[:, 1])
+
+    def _legend_lists_ghost(self, show: bool):
+        """The pinned fit's dashed ghost has a legend entry while there is one."""
+        if self.legend is None:
+            return
+        listed = any(sample.item is self.ghost_boundary for sample, _ in self.legend.items)
+        if show and not listed:
+            self.legend.addItem(self.ghost_boundary, self.ghost_boundary.name())
+        elif listed and not show:
+            self.legend.removeItem(self.ghost_boundary)
 
     def refresh_view(self, rect):
         """Redo what depends on the visible rectangle (after pan or zoom)."""
@@ -235,6 +251,7 @@ class SceneItems:
             self.weight.setData([], [])
             self.arrow.hide()
             self._arrow_tip = None
+            self.scale_note.update(None, None)
             return
         anchor = X.mean(axis=0) if len(X) else np.zeros(2)
         foot = geometry.foot_on_boundary(result.w, result.b, anchor)
@@ -258,3 +275,4 @@ class SceneItems:
         self.arrow.setStyle(angle=angle)
         self.arrow.setPos(tip[0], tip[1])
         self.arrow.show()
+        self.scale_note.update(view, tip)

@@ -12,6 +12,7 @@ from PySide6.QtGui import QStandardItem, QStandardItemModel
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDialog, QDialogButtonBox, QFormLayout,
                                QLabel, QTableView, QVBoxLayout)
 
+from app.dialogs.plain_words import plain
 from solver.files import load_table
 from solver import SlacklineError
 
@@ -42,6 +43,15 @@ class ImportDialog(QDialog):
         form.addRow("label column", self.label)
         form.addRow("positive class (+1)", self.positive)
         form.addRow("", self.drop)
+        for widget, tip in ((self.feature_x, "the column drawn across, as the first feature"),
+                            (self.feature_y, "the column drawn up, as the second feature"),
+                            (self.label, "the column that says which class each row is in"),
+                            (self.positive, "which of the two labels is the positive class "
+                                            "(+1); the other becomes \u22121"),
+                            (self.drop, "leave out rows where a feature is missing or not a "
+                                        "number, or the label is missing; they are listed"),
+                            (self.table, "the first rows of the file as read")):
+            widget.setToolTip(tip)
         self.buttons = QDialogButtonBox(QDialogButtonBox.Ok | QDialogButtonBox.Cancel)
         self.buttons.accepted.connect(self.accept)
         self.buttons.rejected.connect(self.reject)
@@ -104,7 +114,7 @@ class ImportDialog(QDialog):
                 values.append(str(value))
         self.positive.blockSignals(True)
         self.positive.clear()
-        self.positive.addItem("(automatic: 1 of 0/1 or \u00b11)", None)
+        self.positive.addItem("(automatic for labels 0/1 or \u22121/+1)", None)
         for value in sorted(values):
             self.positive.addItem(value, value)
         self.positive.blockSignals(False)
@@ -132,7 +142,7 @@ class ImportDialog(QDialog):
         self.ok_button.setEnabled(True)
 
     def _show_error(self, message, problems=()):
-        lines = [message] + [f"  \u2022 {p}" for p in list(problems)[:6]]
+        lines = [plain(message)] + [f"  \u2022 {p}" for p in list(problems)[:6]]
         if len(problems) > 6:
             lines.append(f"  \u2026 and {len(problems) - 6} more")
         self.message.setStyleSheet("color: #a4161a;")

@@ -6,8 +6,8 @@ come from solver.study.compare and the sentence from solver.study.narrative.
 
 from __future__ import annotations
 
-from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMessageBox, QPushButton,
-                               QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QFileDialog, QGridLayout, QHBoxLayout, QLabel, QMessageBox,
+                               QPushButton, QTableWidget, QTableWidgetItem, QWidget)
 
 from solver.study import compare
 from solver.study import LEAVE_ONE_OUT, cross_validate, points_fingerprint
@@ -18,8 +18,11 @@ from solver import STATUS_TEXT
 from app.document.background import BackgroundTask
 from app.document.evidence import evidence_of
 from app.document.sweep_store import sweep_store
+from app.document.provenance import provenance
+from app.panels.study_layout import side_column
 
 QUICK_FOLDS = 5
+SIDE_WIDTH = 340           # px: the buttons and the plain-words comparison
 
 
 class ComparePanel(QWidget):
@@ -45,9 +48,10 @@ class ComparePanel(QWidget):
         self.clear_button.clicked.connect(self.document.clear_pin)
         self.cv_button.clicked.connect(self.estimate_cv)
         self.report_button.clicked.connect(self._ask_and_export)
-        buttons = QHBoxLayout()
-        for button in (self.pin_button, self.clear_button, self.cv_button, self.report_button):
-            buttons.addWidget(button)
+        buttons = QGridLayout()
+        for place, button in enumerate((self.pin_button, self.clear_button, self.cv_button,
+                                        self.report_button)):
+            buttons.addWidget(button, place // 2, place % 2)
         self.summary = QLabel("")
         self.summary.setWordWrap(True)
         self.table = QTableWidget(0, 4)
@@ -57,12 +61,12 @@ class ComparePanel(QWidget):
         self.changes = QTableWidget(0, 6)
         self.changes.setHorizontalHeaderLabels(["point", "class", "was", "now",
                                                 "slack before", "slack after"])
-        layout = QVBoxLayout(self)
-        layout.addLayout(buttons)
-        layout.addWidget(self.summary)
-        layout.addWidget(self.table, stretch=1)
-        layout.addWidget(self.support)
-        layout.addWidget(self.changes, stretch=2)
+        # the words on the left, the two tables side by side: the study area is wide
+        layout = QHBoxLayout(self)
+        layout.setContentsMargins(4, 4, 4, 4)
+        layout.addWidget(side_column((buttons, self.summary, self.support), SIDE_WIDTH))
+        layout.addWidget(self.table, stretch=2)
+        layout.addWidget(self.changes, stretch=3)
 
     # -- reading the document -------------------------------------------------
     def cv_for(self, result):
@@ -116,8 +120,9 @@ class ComparePanel(QWidget):
         words = (f"Support vectors joined: {_points(comparison.joined)}; "
                  f"left: {_points(comparison.left)}.")
         if not comparison.same_points:
-            words += (f" The points differ from the pinned fit's: {len(comparison.added)} added,"
-                      f" {len(comparison.removed)} removed (matched by coordinates and label).")
+            words += (f" The points differ from the pinned fit's: {len(comparison.moved)} moved,"
+                      f" {len(comparison.added)} added, {len(comparison.removed)} removed "
+                      f"(matched by coordinates and label).")
         self.support.setText(words)
         self.changes.setRowCount(len(comparison.changes))
         for r, change in enumerate(comparison.changes):
@@ -181,7 +186,8 @@ class ComparePanel(QWidget):
         if current is not None:
             sweep = self.store.current_for(current.X, current.y, current.config)
         return export_report(path, document.dataset(), current, pinned, sweep,
-                             self.cv_for(pinned), self.cv_for(current),
+                             self.cv_for(pinned), self.cv_for(current), note=document.note,
+                             edited=provenance(document).edited_since_import(),
                              heldout=evidence_of(document).counts)
 
 

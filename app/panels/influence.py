@@ -34,6 +34,10 @@ class InfluencePanel(QWidget):
         self.table.setEditTriggers(QAbstractItemView.NoEditTriggers)
         self.table.setMouseTracking(True)
         self.table.horizontalHeader().setSectionResizeMode(QHeaderView.Stretch)
+        self.table.setToolTip("each support vector left out in turn: how far the boundary "
+                              "turns (linear), the change of b and of the margin width, and "
+                              "how many predictions flip; choose a row to see the boundary "
+                              "without that point")
         self.table.itemSelectionChanged.connect(self._row_chosen)
         self.table.cellEntered.connect(lambda row, _col: self._show_ghost(row))
         self.note = QLabel("")

@@ -6,6 +6,8 @@ from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT
 
+from app.panels.units import length_suffix
+
 READING = {
     OUTSIDE: "outside the margin: alpha is 0, so this point has no say in where the "
              "boundary lies; moving it a little changes nothing",
@@ -72,8 +74,8 @@ class Inspector(QWidget):
             return
         self.values["decision"].setText(_g(result.decision[i]))
         self.values["margin"].setText(_g(result.functional_margin[i]))
-        self.values["distance"].setText(_g(result.distance[i]) + ("" if result.w is not None
-                                                                   else " (feature space)"))
+        unit = length_suffix(result, doc.units)
+        self.values["distance"].setText(_g(result.distance[i]) + unit)
         if result.projection is not None:
             self.values["projection"].setText(_g(result.projection[i]))
         self.values["alpha"].setText(f"{_g(result.alpha[i])}  (C\u1d62 = {_g(result.penalties[i])})")

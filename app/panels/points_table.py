@@ -1,23 +1,47 @@
-"""All points in a sortable table, filterable by status, selection linked to the canvas."""
+"""All points in a sortable table, filterable by status, selection linked to the canvas.
+
+The columns fit the study area's width without a horizontal scroll bar: short
+headers, each explained in its tooltip.  Coordinates and labels are editable
+in place; an edit goes to the document as an undoable move or relabel, and a
+value that cannot be used is refused with a one-line reason under the table.
+"""
 
 from __future__ import annotations
 
 import numpy as np
-from PySide6.QtCore import (QAbstractTableModel, QItemSelection, QItemSelectionModel,
-                            QModelIndex, QSortFilterProxyModel, Qt, QTimer)
+import math
 
-REFRESH_MS = 120   # new fits reach the table at most this often: the canvas goes first
+from PySide6.QtCore import (QAbstractTableModel, QItemSelection, QItemSelectionModel,
+                            QModelIndex, QSortFilterProxyModel, Qt, QTimer, Signal)
 from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QHBoxLayout, QHeaderView, QLabel,
                                QTableView, QVBoxLayout, QWidget)
 
-from solver import STATUS_TEXT, STATUSES
+from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, STATUSES
 
-COLUMNS = ("#", "x1", "x2", "label", "f(x)", "y\u00b7f", "distance", "alpha", "slack",
-           "status")
+from app.panels.units import length_suffix
+
+REFRESH_MS = 120   # new fits reach the table at most this often: the canvas goes first
+COLUMNS = ("#", "x1", "x2", "label", "f(x)", "y\u00b7f", "dist", "\u03b1", "\u03be", "status")
+TIPS = ("the point's row number", "first feature (double-click to type a new value)",
+        "second feature (double-click to type a new value)",
+        "class label as written in the data (double-click to change the class)",
+        "decision value f(x): positive on the +1 side, 0 on the boundary",
+        "functional margin y\u00b7f(x): at least 1 outside the band, below 0 on the wrong side",
+        "distance to the boundary, y\u00b7f/|w| (negative on the wrong side)",
+        "alpha, the point's dual weight: 0 outside the margin, C\u1d62 when inside it",
+        "slack \u03be = max(0, 1 \u2212 y\u00b7f): how far the point is on the wrong side of "
+        "its margin edge, in units of f",
+        "where the point is: outside the margin, on the margin edge, inside the band, or "
+        "misclassified")
+SHORT_STATUS = {OUTSIDE: "outside", ON_MARGIN: "on margin", INSIDE: "inside",
+                MISCLASSIFIED: "misclassified"}
+EDITABLE = (1, 2, 3)
 SORT_ROLE = Qt.UserRole + 1
 
 
 class PointsModel(QAbstractTableModel):
+    refused = Signal(str)          # an edit that could not be applied, and why
+
     def __init__(self, document, parent=None):
         super().__init__(parent)
         self.document = document
@@ -57,12 +81,60 @@ class PointsModel(QAbstractTableModel):
         return 0 if parent.isValid() else len(COLUMNS)
 
     def headerData(self, section, orientation, role=Qt.DisplayRole):
-        if role != Qt.DisplayRole:
+        if orientation != Qt.Horizontal:
             return None
-        if orientation == Qt.Horizontal:
-            names = self.document.feature_names
+        names, units = self.document.feature_names, self.document.units or ("", "")
+        if role == Qt.DisplayRole:
             return {1: names[0], 2: names[1]}.get(section, COLUMNS[section])
+        if role == Qt.ToolTipRole:
+            if section in (1, 2):
+                unit = f" [{units[section - 1]}]" if units[section - 1] else ""
+                return f"{names[section - 1]}{unit}: {TIPS[section]}"
+            if section == 6 and self._result is not None:
+                suffix = length_suffix(self._result, units).strip(" ()")
+                return f"{TIPS[6]}; in {suffix}" if suffix else TIPS[6]
+            return TIPS[section]
         return None
+
+    def flags(self, index):
+        flags = super().flags(index)
+        return flags | Qt.ItemIsEditable if index.column() in EDITABLE else flags
+
+    def setData(self, index, value, role=Qt.EditRole):
+        if role != Qt.EditRole or not index.isValid() or index.column() not in EDITABLE:
+            return False
+        row, column, doc = index.row(), index.column(), self.document
+        text = str(value).strip()
+        if column == 3:
+            return self._relabel(row, text)
+        try:
+            number = float(text.replace("\u2212", "-"))
+        except ValueError:
+            number = math.nan
+        if not math.isfinite(number):
+            name = doc.feature_names[column - 1]
+            self.refused.emit(f"{name} must be a finite number; got {text!r}; type a number "
+                              f"such as 1.25")
+            return False
+        position = doc.X[row].copy()
+        if position[column - 1] == number:
+            return False
+        position[column - 1] = number
+        doc.move_points([row], [position])
+        return True
+
+    def _relabel(self, row, text):
+        doc = self.document
+        signs = {str(label): sign for label, sign in doc.label_mapping.items()}
+        signs.update({"+1": 1, "1": 1, "-1": -1, "\u22121": -1})
+        if text not in signs:
+            choices = f"{doc.label_for(1)!r} (+1) or {doc.label_for(-1)!r} (\u22121)"
+            self.refused.emit(f"the label {text!r} is not one of the two classes; type "
+                              f"{choices}")
+            return False
+        if signs[text] != int(doc.y[row]):
+            doc.relabel([row], signs[text])
+        return True
 
     def value(self, row: int, column: int):
         doc, result = self.document, self._result
@@ -85,14 +157,22 @@ class PointsModel(QAbstractTableModel):
         if not index.isValid():
             return None
         value = self.value(index.row(), index.column())
+        column = index.column()
         if role == SORT_ROLE:
             return value if value is not None else ""
+        if role == Qt.EditRole:
+            return repr(value) if isinstance(value, float) else str(value)
+        if role == Qt.ToolTipRole and value is not None:
+            if column == 9:
+                return STATUS_TEXT[value]
+            return repr(value) if isinstance(value, float) else None
         if role == Qt.DisplayRole:
             if value is None:
                 return ""
-            if index.column() == 9:
-                return STATUS_TEXT[value]
-            return f"{value:.5g}" if isinstance(value, float) else str(value)
+            if column == 9:
+                return SHORT_STATUS[value]
+            digits = 6 if column in (1, 2) else 4
+            return f"{value:.{digits}g}" if isinstance(value, float) else str(value)
         if role == Qt.TextAlignmentRole and index.column() not in (3, 9):
             return int(Qt.AlignRight | Qt.AlignVCenter)
         return None
@@ -138,19 +218,33 @@ class PointsTable(QWidget):
         self.view.setSelectionBehavior(QAbstractItemView.SelectRows)
         self.view.verticalHeader().hide()
         self.view.verticalHeader().setDefaultSectionSize(20)
-        self.view.horizontalHeader().setSectionResizeMode(QHeaderView.Interactive)
-        self.view.horizontalHeader().setDefaultSectionSize(74)
-        self.view.horizontalHeader().setStretchLastSection(True)
+        header = self.view.horizontalHeader()
+        header.setMinimumSectionSize(36)
+        header.setSectionResizeMode(QHeaderView.Stretch)      # share the width: no h-scroll
+        header.setSectionResizeMode(0, QHeaderView.ResizeToContents)
+        header.setSectionResizeMode(9, QHeaderView.ResizeToContents)
+        header.setTextElideMode(Qt.ElideRight)
+        self.view.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        triggers = QAbstractItemView
+        self.view.setEditTriggers(triggers.DoubleClicked | triggers.EditKeyPressed
+                                  | triggers.AnyKeyPressed)
         self.filter = QComboBox()
         self.filter.addItem("all points", None)
         for status in STATUSES:
             self.filter.addItem(STATUS_TEXT[status], status)
         self.filter.currentIndexChanged.connect(
             lambda _: self.proxy.set_status(self.filter.currentData()))
+        self.filter.setToolTip("show every point, or only those with one status")
+        self.view.setToolTip("every point with its figures from the fit; double-click a "
+                             "coordinate or a label to type a new one (Ctrl+Z undoes)")
+        self.refusal = QLabel("", objectName="points_refusal")
+        self.refusal.setStyleSheet("color: #a4161a;")
+        self.model.refused.connect(self.refusal.setText)
+        document.points_changed.connect(lambda: self.refusal.setText(""))
         top = QHBoxLayout()
         top.addWidget(QLabel("show"))
         top.addWidget(self.filter)
-        top.addStretch(1)
+        top.addWidget(self.refusal, 1)
         layout = QVBoxLayout(self)
         layout.setContentsMargins(4, 4, 4, 4)
         layout.addLayout(top)
@@ -159,17 +253,6 @@ class PointsTable(QWidget):
         self.view.selectionModel().selectionChanged.connect(self._table_selected)
         document.selection_changed.connect(self._document_selected)
         self.model.modelReset.connect(self._document_selected)
-        self.model.modelReset.connect(self._fit_headers)
-        self._fit_headers()
-
-    def _fit_headers(self):
-        """Feature columns as wide as their names (with units), so none is cut."""
-        header = self.view.horizontalHeader()
-        metrics = header.fontMetrics()
-        for column in (1, 2):
-            text = str(self.model.headerData(column, Qt.Horizontal))
-            header.resizeSection(column, max(header.defaultSectionSize(),
-                                             metrics.horizontalAdvance(text) + 24))
 
     def _fit_values_changed(self, *_):
         if self.proxy.status is not None or self.proxy.sortColumn() >= 4:

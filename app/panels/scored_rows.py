@@ -23,6 +23,9 @@ class ScoredRowsPanel(QWidget):
         self.table = QTableWidget(0, 0)
         self.table.setObjectName("scored_table")
         self.table.setEditTriggers(QAbstractItemView.NoEditTriggers)
+        self.table.setToolTip("each scored row: its line in the file, decision value f(x), "
+                              "predicted label, distance to the boundary and whether it is a "
+                              "close call (inside the margin band, |f| < 1)")
         self.table.horizontalHeader().setSectionResizeMode(QHeaderView.Stretch)
         self.note = QLabel("File \u2192 Score data\u2026 reads rows with the fit's two feature "
                            "columns")
@@ -30,7 +33,10 @@ class ScoredRowsPanel(QWidget):
         self.note.setObjectName("scored_note")
         self.export_button = QPushButton("Export scored rows\u2026")
         self.export_button.setObjectName("export_scored")
+        self.export_button.setToolTip("write the scored rows as CSV (the table "
+                                      "slackline predict --csv writes)")
         self.clear_button = QPushButton("Clear")
+        self.clear_button.setToolTip("forget the scored rows")
         self.clear_button.clicked.connect(self.evidence.clear_rows)
         buttons = QHBoxLayout()
         buttons.addWidget(self.export_button)

@@ -6,20 +6,30 @@ from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN
 
-ROWS = (
-    ("w", "w (weight vector)"),
-    ("b", "b (intercept)"),
-    ("margin", "margin width 2/|w|"),
-    ("support", "support vectors"),
-    ("breakdown", "  on / inside / misclassified"),
-    ("error", "training error"),
-    ("heldout", "held-out error"),
-    ("confusion", "  TP / FP / TN / FN"),
-    ("regularisation", "\u00bd|w|\u00b2"),
-    ("penalty", "\u03a3 C\u1d62\u03be\u1d62"),
-    ("gap", "duality gap"),
-    ("time", "solve time"),
-    ("state", ""),
+from app.panels.units import length_suffix, units_sentence
+
+ROWS = (   # (key, title, tooltip)
+    ("w", "w", "the weight vector: f(x) = w\u00b7x + b; w points from the \u22121 side to "
+               "the +1 side, at right angles to the boundary"),
+    ("b", "b", "the intercept of the decision function f(x) = w\u00b7x + b"),
+    ("margin", "margin width", "2/|w|: the width of the band between f = \u22121 and f = +1"),
+    ("units", "units", "in which units w, the margin width and the distances are"),
+    ("support", "support vectors", "points with alpha > 0: they alone decide the boundary"),
+    ("breakdown", "on / inside / wrong", "support vectors on the margin edge / inside the "
+                                         "band / on the wrong side of the boundary"),
+    ("error", "training error", "share of the training points on the wrong side; not an "
+                                "estimate of the error on new data"),
+    ("heldout", "held-out error", "share of the held-out points (kept out of the fit) on "
+                                  "the wrong side: Edit \u2192 Hold out selected points, or "
+                                  "File \u2192 Load held-out points"),
+    ("confusion", "TP / FP / TN / FN", "held-out confusion counts: true positive, false "
+                                       "positive, true negative, false negative"),
+    ("regularisation", "\u00bd|w|\u00b2", "the regularisation term of the objective"),
+    ("penalty", "\u03a3 C\u1d62\u03be\u1d62", "the slack penalty term of the objective"),
+    ("gap", "duality gap", "primal minus dual objective: how far the solver is from the "
+                           "exact optimum (smaller is better)"),
+    ("time", "solve time", "wall-clock time of the last solve and its iterations"),
+    ("state", "", "whether these figures belong to the current points and settings"),
 )
 
 
@@ -34,14 +44,18 @@ class Summary(QWidget):
         self.values = {}
         form = QFormLayout(self)
         form.setHorizontalSpacing(14)
-        for key, title in ROWS:
+        form.setRowWrapPolicy(QFormLayout.WrapLongRows)
+        for key, title, tip in ROWS:
             label = QLabel("\u2014")
+            label.setToolTip(tip)
             label.setObjectName(f"summary_{key}")
             label.setTextInteractionFlags(label.textInteractionFlags() | _selectable())
-            label.setStyleSheet("font-family: monospace;" if key != "state" else "")
-            label.setWordWrap(key == "state")
+            label.setStyleSheet("font-family: monospace;" if key not in ("state", "units") else "")
+            label.setWordWrap(key in ("state", "units"))
             self.values[key] = label
             form.addRow(title, label)
+            if form.labelForField(label) is not None:
+                form.labelForField(label).setToolTip(tip)
         document.result_changed.connect(self.refresh)
         document.solve_failed.connect(lambda _message: self.refresh())
         self.refresh()
@@ -62,12 +76,13 @@ class Summary(QWidget):
             self.values["state"].setText(doc.last_error or "no fit yet")
             return
         set_ = lambda key, text: self.values[key].setText(text)  # noqa: E731
+        unit = length_suffix(result, doc.units)
         if result.w is not None:
             set_("w", f"({number(result.w[0])}, {number(result.w[1])})")
-            set_("margin", number(result.margin_width))
         else:
             set_("w", f"\u2014 ({result.config.kernel} kernel: no w in the plane)")
-            set_("margin", f"2/|w| = {number(result.margin_width)} in feature space")
+        set_("margin", number(result.margin_width) + unit)
+        set_("units", units_sentence(result, doc.units, doc.feature_names))
         set_("b", number(result.b))
         set_("support", str(result.n_support))
         set_("breakdown", f"{result.count(ON_MARGIN)} / {result.count(INSIDE)} / "

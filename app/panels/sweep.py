@@ -14,9 +14,11 @@ from solver import SlacklineError
 from solver.study import SweepSettings, run_sweep
 
 from app.document.background import BackgroundTask
+from app.panels.study_layout import ChartArea, side_column
 from app.panels.sweep_chart import SweepChart
 from app.document.sweep_store import sweep_store
 
+SIDE_WIDTH = 290            # px: the settings, buttons and the suggestion beside the charts
 PARALLEL_FROM_POINTS = 200   # below this, process start-up costs more than it saves
 SUGGESTION_NOTE = ("Suggestion only, from cross-validation on these points — not a "
                    "validated model. In an SVM a smaller C is the more regularised, "
@@ -65,7 +67,7 @@ class SweepPanel(QWidget):
         self.progress = QProgressBar()
         self.progress.setFormat("%v of %m fits")
         buttons = QHBoxLayout()
-        for widget in (self.run_button, self.cancel_button, self.progress):
+        for widget in (self.run_button, self.cancel_button):
             buttons.addWidget(widget)
         self.status = QLabel("No sweep yet: press Run sweep.")
         self.status.setWordWrap(True)
@@ -74,20 +76,22 @@ class SweepPanel(QWidget):
         self.use_best = QPushButton("Use lowest-error C")
         self.use_largest = QPushButton("Use largest C within 1 SE")
         self.use_smallest = QPushButton("Use smallest C within 1 SE")
-        picks = QHBoxLayout()
+        picks = QVBoxLayout()
         for button, field in ((self.use_best, "best_C"),
                               (self.use_largest, "largest_C_within_one_se"),
                               (self.use_smallest, "smallest_C_within_one_se")):
             button.clicked.connect(lambda _=False, f=field: self._use_suggestion(f))
             button.setEnabled(False)
             picks.addWidget(button)
-        layout = QVBoxLayout(self)
-        layout.addLayout(form)
-        layout.addLayout(buttons)
-        layout.addWidget(self.status)
-        layout.addWidget(self.chart, stretch=1)
-        layout.addWidget(self.suggestion)
-        layout.addLayout(picks)
+        # settings and words in a column on the left, the charts on the right: the
+        # study area is wide and short, and each chart keeps >= 220 px of height
+        self.side = side_column((form, buttons, self.progress, self.status, self.suggestion,
+                                 picks), SIDE_WIDTH)
+        self.chart_area = ChartArea(self.chart)
+        layout = QHBoxLayout(self)
+        layout.setContentsMargins(4, 4, 4, 4)
+        layout.addWidget(self.side)
+        layout.addWidget(self.chart_area, stretch=1)
 
     # -- running ----------------------------------------------------------------
     def settings(self) -> SweepSettings:

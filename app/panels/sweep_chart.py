@@ -50,8 +50,24 @@ class SweepChart(pg.GraphicsLayoutWidget):
             marker.setVisible(False)
             plot.addItem(marker, ignoreBounds=True)
             self.plots[title], self.markers = plot, self.markers + [marker]
+        self._columns = 2
         self.band = None
         self.scene().sigMouseClicked.connect(self._on_click)
+
+    def arrange(self, columns: int) -> None:
+        """Lay the plots out ``columns`` to a row (1, 2 or 4), in the order of CURVES."""
+        columns = max(1, min(int(columns), len(self.plots)))
+        if getattr(self, "_columns", None) == columns:
+            return
+        self._columns = columns
+        for plot in self.plots.values():
+            self.ci.removeItem(plot)
+        for place, plot in enumerate(self.plots.values()):
+            self.ci.addItem(plot, row=place // columns, col=place % columns)
+
+    def rows(self) -> int:
+        columns = getattr(self, "_columns", 2)
+        return -(-len(self.plots) // columns)
 
     def show_sweep(self, sweep, stale: bool = False) -> None:
         """Draw ``sweep`` (None clears); ``stale`` greys every curve."""

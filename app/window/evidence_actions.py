@@ -3,7 +3,7 @@
 File -> Score data...            new rows with the fit's feature columns, scored and drawn
 File -> Load held-out points...  labelled rows kept out of the fit
 Edit -> Hold out selected points the selection leaves the fit (undoable)
-View -> Influence / Scored rows  the panels
+View -> Influence / Scored rows  the study tabs
 
 Files are read by solver.files (through app.document.evidence); this module
 asks for names and reports what the file layer says.
@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from PySide6.QtCore import QObject, QSettings, Qt
+from PySide6.QtCore import QObject, QSettings
 from PySide6.QtWidgets import QFileDialog
 
 from solver import SlacklineError
@@ -34,19 +34,19 @@ class EvidenceActions(QObject):
         self.influence_panel = InfluencePanel(window.document)
         self.scored_panel = ScoredRowsPanel(window.document)
         self.scored_panel.export_button.clicked.connect(lambda: self.export_scored())
-        docks = [window._dock("Influence", self.influence_panel, Qt.BottomDockWidgetArea),
-                 window._dock("Scored rows", self.scored_panel, Qt.BottomDockWidgetArea)]
-        window.tabifyDockWidget(docks[0], docks[1])    # each gets the window's width
-        for dock in docks:
-            dock.hide()
-        self._menus(docks)
+        window.workspace.add_study("Influence", self.influence_panel,
+                                   "which points hold the boundary: each support vector left "
+                                   "out in turn, largest effect first")
+        window.workspace.add_study("Scored rows", self.scored_panel,
+                                   "new rows scored by the current fit (File \u2192 Score data)")
+        self._menus()
         self.evidence.changed.connect(window.summary.refresh)
         self.evidence.influence_changed.connect(window.inspector.refresh)
         compare_panel = window.optional_panels.get("ComparePanel")
         if compare_panel is not None:
             self.evidence.changed.connect(compare_panel.refresh)
 
-    def _menus(self, docks):
+    def _menus(self):
         window = self.window
         menus = {a.text().replace("&", ""): a.menu() for a in window.menuBar().actions()}
         file_menu, edit, view = menus["File"], menus["Edit"], menus["View"]
@@ -64,8 +64,10 @@ class EvidenceActions(QObject):
                                           name="hold_out")
         window._action(edit, "Clear held-out points", lambda: self.evidence.set_heldout(None),
                        name="clear_heldout")
-        for dock in docks:
-            view.addAction(dock.toggleViewAction())
+        view.addSeparator()
+        for title in ("Influence", "Scored rows"):
+            window._action(view, title, lambda _=False, t=title: window.workspace.show_study(t),
+                           name=f"show_{title.lower().replace(' ', '_')}")
 
     # -- prompts ---------------------------------------------------------------
     def _ask(self, title):
@@ -90,8 +92,7 @@ class EvidenceActions(QObject):
         except SlacklineError as exc:
             self.window.files._error("Cannot score the rows", exc)
             return False
-        self.window.docks["Scored rows"].show()
-        self.window.docks["Scored rows"].raise_()
+        self.window.workspace.show_study("Scored rows")
         self.window.statusBar().showMessage(f"scored {len(self.evidence.rows)} rows of "
                                             f"{Path(path).name}", 5000)
         return True

@@ -2,15 +2,14 @@
 
 from __future__ import annotations
 
-import importlib
 from pathlib import Path
 
 from PySide6.QtCore import QSettings, Qt
 from PySide6.QtGui import QAction, QKeySequence
-from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QMenu, QMessageBox,
-                               QProgressBar, QScrollArea)
+from PySide6.QtWidgets import QMainWindow, QMenu, QMessageBox
 
 from app.dialogs.about import show_about
+from app.dialogs.help_pages import READING, shortcuts_html, show_page
 from app.canvas import geometry
 from app.canvas.canvas import Canvas
 from app.panels.controls import Controls
@@ -19,13 +18,20 @@ from app.window.evidence_actions import install_evidence
 from app.window.file_actions import FileActions
 from app.panels.inspector import Inspector
 from app.panels.points_table import PointsTable
+from app.document.provenance import provenance
 from app.document.recovery import RecoveryWriter, pending_recovery
+from app.panels.note import NoteEditor
 from app.panels.summary import Summary
+from app.window.status import StatusReadouts
+from app.window.tooltips import apply_tooltips
+from app.window.workspace import Workspace
 from solver import kernels
 
-# panels written elsewhere; each docks itself in when its module is present
-OPTIONAL_PANELS = (("app.panels.sweep", "SweepPanel", "C sweep"),
-                   ("app.panels.compare", "ComparePanel", "Compare"))
+# each becomes a tab of the study area when its module is present
+OPTIONAL_PANELS = (("app.panels.sweep", "SweepPanel", "C sweep",
+                    "cross-validated error and more against C; click the chart to set C"),
+                   ("app.panels.compare", "ComparePanel", "Compare",
+                    "the current fit against the pinned one, in numbers and words"))
 
 
 class MainWindow(QMainWindow):
@@ -35,77 +41,42 @@ class MainWindow(QMainWindow):
         self.last_import_dialog = None
         self.setObjectName("slackline_main_window")
         self.document = document or Document(self)
+        provenance(self.document)     # remembers the points as imported, before any edit
         self.canvas = Canvas(self.document)
         self.setCentralWidget(self.canvas)
         self.controls = Controls(self.document, self.canvas)
         self.summary = Summary(self.document)
         self.inspector = Inspector(self.document)
         self.points_table = PointsTable(self.document)
-        self.docks = {}
-        self._dock("Fit settings", self.controls, Qt.LeftDockWidgetArea, scroll=True)
-        self._dock("Summary", self.summary, Qt.LeftDockWidgetArea)
-        self._dock("Point", self.inspector, Qt.RightDockWidgetArea)
-        self._dock("Points", self.points_table, Qt.RightDockWidgetArea)
-        self.optional_panels = {}
-        for module_name, class_name, title in OPTIONAL_PANELS:
-            try:
-                panel_class = getattr(importlib.import_module(module_name), class_name)
-            except (ImportError, AttributeError):
-                continue
-            panel = panel_class(self.document)
-            self.optional_panels[class_name] = panel
-            dock = self._dock(title, panel, Qt.BottomDockWidgetArea)
-            dock.hide()
+        self.note_editor = NoteEditor(self.document)
+        self.workspace = Workspace(self)
+        self.docks = self.workspace.docks
+        self.workspace.settings_column(self.controls)
+        self.workspace.dock("Summary", self.summary, Qt.LeftDockWidgetArea, scroll=True)
+        self.workspace.add_study("Points", self.points_table, "every point with its figures; "
+                                 "double-click a coordinate or label to edit it")
+        self.optional_panels = self.workspace.add_optional_studies(self.document,
+                                                                   OPTIONAL_PANELS)
+        self.workspace.add_study("Note", self.note_editor, "the experiment's note: saved in "
+                                 "the file and printed in the report")
         self.files = FileActions(self, self.document, self.canvas)
         self.recovery = RecoveryWriter(self.document, self)
         self._build_status_bar()
         self._build_menus()
         self.evidence_actions = install_evidence(self)   # scored rows, held-out, influence
+        apply_tooltips(self)
         self.setAcceptDrops(True)
         self.document.dirty_changed.connect(self._update_title)
         self.document.path_changed.connect(self._update_title)
-        self.document.busy_changed.connect(self._busy)
-        self.document.solve_failed.connect(self._solve_failed)
-        self.document.result_changed.connect(self._result_changed)
         self.resize(1280, 800)
-        self.resizeDocks([self.docks["Fit settings"], self.docks["Point"]], [300, 330],
-                         Qt.Horizontal)
-        self.resizeDocks([self.docks["Fit settings"], self.docks["Summary"]], [380, 300],
-                         Qt.Vertical)
-        self.resizeDocks([self.docks["Point"], self.docks["Points"]], [300, 420], Qt.Vertical)
+        self.workspace.finish(self.inspector)
         self._restore_settings()
         self._update_title()
 
     # -- layout ------------------------------------------------------------
-    def _dock(self, title, widget, area, scroll=False):
-        dock = QDockWidget(title, self)
-        dock.setObjectName(f"dock_{title.lower().replace(' ', '_')}")
-        if scroll:
-            holder = QScrollArea()
-            holder.setWidget(widget)
-            holder.setWidgetResizable(True)
-            holder.setFrameShape(QScrollArea.NoFrame)
-            widget = holder
-        dock.setWidget(widget)
-        self.addDockWidget(area, dock)
-        self.docks[title] = dock
-        return dock
-
     def _build_status_bar(self):
-        self.busy_indicator = QProgressBar()
-        self.busy_indicator.setRange(0, 0)
-        self.busy_indicator.setMaximumSize(70, 12)
-        self.busy_indicator.setTextVisible(False)
-        self.busy_indicator.setToolTip("solving\u2026")
-        # keep its room when hidden: a status bar that changes height re-lays
-        # out the window and repaints the whole canvas during every solve
-        policy = self.busy_indicator.sizePolicy()
-        policy.setRetainSizeWhenHidden(True)
-        self.busy_indicator.setSizePolicy(policy)
-        self.busy_indicator.hide()
-        self.fit_state = QLabel()
-        self.statusBar().addPermanentWidget(self.fit_state)
-        self.statusBar().addPermanentWidget(self.busy_indicator)
+        self.status = StatusReadouts(self, self.document, self.canvas)
+        self.fit_state, self.busy_indicator = self.status.fit_state, self.status.busy_indicator
 
     def _action(self, menu, text, slot, shortcut=None, name=None):
         action = QAction(text, self)
@@ -158,7 +129,7 @@ class MainWindow(QMainWindow):
         self._action(relabel, "Make \u22121", lambda: doc.relabel(doc.selection, -1),
                      name="relabel_negative")
         edit.addSeparator()
-        self._action(edit, "Pin current fit", doc.pin_current, "Ctrl+P")
+        self._action(edit, "Pin current fit", self.status.pin, "Ctrl+P")
         self._action(edit, "Clear pin", doc.clear_pin)
 
         view = bar.addMenu("&View")
@@ -174,7 +145,17 @@ class MainWindow(QMainWindow):
         for dock in self.docks.values():
             view.addAction(dock.toggleViewAction())
         help_menu = bar.addMenu("&Help")
+        self._action(help_menu, "Keyboard shortcuts", self.show_shortcuts, "F1")
+        self._action(help_menu, "Reading the canvas", self.show_reading)
+        help_menu.addSeparator()
         self._action(help_menu, "About Slackline", lambda: show_about(self))
+
+    def show_shortcuts(self):
+        self.help_page = show_page(self, "Keyboard shortcuts", shortcuts_html(self),
+                                   "help_shortcuts")
+
+    def show_reading(self):
+        self.help_page = show_page(self, "Reading the canvas", READING, "help_reading")
 
     def _fill_recent(self):
         self.recent_menu.clear()
@@ -188,21 +169,6 @@ class MainWindow(QMainWindow):
         name = Path(self.document.path).name if self.document.path else "untitled"
         self.setWindowTitle(f"{name}[*] \u2014 Slackline")
         self.setWindowModified(self.document.is_dirty)
-
-    def _busy(self, busy: bool):
-        self.busy_indicator.setVisible(busy)
-
-    def _solve_failed(self, message: str):
-        self.statusBar().showMessage(message)
-
-    def _result_changed(self):
-        result = self.document.result
-        if result is not None and not self.document.result_is_stale:
-            self.statusBar().clearMessage()
-            self.fit_state.setText(f"{len(result.y)} points \u00b7 {result.config.kernel} \u00b7 "
-                                   f"{result.seconds * 1e3:.1f} ms")
-        elif self.document.result_is_stale:
-            self.fit_state.setText("stale fit")
 
     # -- session ------------------------------------------------------------------------
     def match_axes_to_data(self):

@@ -67,6 +67,7 @@ class Comparison:
     angle_degrees: float | None      # signed turn of w from before to after (linear only)
     cv_before: CVEstimate | None = None
     cv_after: CVEstimate | None = None
+    moved: tuple = ()                # (before index, after index): same class, new place
 
     @property
     def settings_changed(self) -> dict:
@@ -104,20 +105,23 @@ def compare(before: FitResult, after: FitResult, cv_before: CVEstimate | None = 
     if same:
         matched = tuple((i, i) for i in range(len(after.y)))
         added, removed = (), ()
+        moved = ()
     else:
         matched, added, removed = _match_by_coordinates(before, after)
+        moved, added, removed = _pair_moves(before, after, added, removed)
     support_before = set(before.support.tolist())
     support_after = set(after.support.tolist())
-    joined = tuple(j for i, j in matched if j in support_after and i not in support_before)
+    paired = matched + moved
+    joined = tuple(j for i, j in paired if j in support_after and i not in support_before)
     joined += tuple(j for j in added if j in support_after)
-    left = tuple(i for i, j in matched if i in support_before and j not in support_after)
+    left = tuple(i for i, j in paired if i in support_before and j not in support_after)
     left += tuple(i for i in removed if i in support_before)
     changes = tuple(
         PointChange(before_index=i, after_index=j, x=(float(after.X[j, 0]), float(after.X[j, 1])),
                     sign=int(after.y[j]), status_before=str(before.status[i]),
                     status_after=str(after.status[j]), slack_before=float(before.slack[i]),
                     slack_after=float(after.slack[j]))
-        for i, j in sorted(matched, key=lambda pair: pair[1])
+        for i, j in sorted(paired, key=lambda pair: pair[1])
         if before.status[i] != after.status[j])
     angle = None
     if before.w is not None and after.w is not None:
@@ -125,7 +129,8 @@ def compare(before: FitResult, after: FitResult, cv_before: CVEstimate | None = 
     return Comparison(before=before, after=after, same_points=same, matched=matched,
                       added=tuple(sorted(added)), removed=tuple(sorted(removed)),
                       joined=tuple(sorted(joined)), left=tuple(sorted(left)), changes=changes,
-                      angle_degrees=angle, cv_before=cv_before, cv_after=cv_after)
+                      angle_degrees=angle, cv_before=cv_before, cv_after=cv_after,
+                      moved=tuple(moved))
 
 
 def _match_by_coordinates(before: FitResult, after: FitResult):
@@ -142,6 +147,16 @@ def _match_by_coordinates(before: FitResult, after: FitResult):
             added.append(j)
     removed = sorted(i for queue in waiting.values() for i in queue)
     return tuple(matched), tuple(added), tuple(removed)
+
+
+def _pair_moves(before: FitResult, after: FitResult, added, removed):
+    """A point dragged to a new place keeps its row and its class: an unmatched point
+    of ``before`` and one of ``after`` in the same row, of the same class, are a move."""
+    appeared = {j for j in added}
+    moved = tuple((i, i) for i in removed if i in appeared and before.y[i] == after.y[i])
+    rows = {i for i, _ in moved}
+    return (moved, tuple(j for j in added if j not in rows),
+            tuple(i for i in removed if i not in rows))
 
 
 def _signed_angle(w_before, w_after) -> float:

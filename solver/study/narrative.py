@@ -68,6 +68,8 @@ def _cause(comparison: Comparison) -> str:
         if name in changed:
             old, new = changed[name]
             parts.append(f"changing {label} from {setting(old)} to {setting(new)}")
+    if comparison.moved:
+        parts.append(f"moving {_count(len(comparison.moved), 'point')}")
     if comparison.added:
         parts.append(f"adding {_count(len(comparison.added), 'point')}")
     if comparison.removed:

@@ -1,0 +1,51 @@
+"""The import dialog speaks in its own words, not the command line's."""
+
+import re
+
+from PySide6.QtCore import Qt
+
+from test_gui_fixtures import temporary_settings  # noqa: F401
+
+
+def _write(path, rows):
+    path.write_text("bore [mm],flatness [um],verdict\n"
+                    + "".join(f"{a},{b},{c}\n" for a, b, c in rows), encoding="utf-8")
+    return path
+
+
+def _dialog(qtbot, path):
+    from app.dialogs.import_dialog import ImportDialog
+    dialog = ImportDialog(str(path))
+    qtbot.addWidget(dialog)
+    return dialog
+
+
+def test_two_word_labels_ask_for_the_positive_class_by_the_controls_name(qtbot, tmp_path,
+                                                                         temporary_settings):
+    path = _write(tmp_path / "batch.csv", [(1.0, 2.0, "ok"), (2.0, 1.0, "scrap"),
+                                           (1.5, 2.5, "ok")])
+    dialog = _dialog(qtbot, path)
+    text = dialog.message.text()
+    assert not dialog.ok_button.isEnabled()
+    assert "positive class (+1)" in text and "below" in text
+    assert not re.search(r"--\w", text)
+
+
+def test_incomplete_rows_point_to_the_skip_box(qtbot, tmp_path, temporary_settings):
+    path = _write(tmp_path / "gaps.csv", [(1.0, 2.0, 1), (2.0, "", -1), (1.5, 2.5, 1),
+                                          (3.0, 0.5, -1)])
+    dialog = _dialog(qtbot, path)
+    text = dialog.message.text()
+    assert "skip rows with a missing or non-numeric value" in text
+    assert not re.search(r"--\w", text)
+    dialog.drop.setFocus()
+    qtbot.keyClick(dialog.drop, Qt.Key_Space)
+    assert dialog.ok_button.isEnabled()
+
+
+def test_every_control_of_the_import_dialog_has_a_tooltip(qtbot, tmp_path, temporary_settings):
+    path = _write(tmp_path / "ok.csv", [(1.0, 2.0, 1), (2.0, 1.0, -1)])
+    dialog = _dialog(qtbot, path)
+    for widget in (dialog.feature_x, dialog.feature_y, dialog.label, dialog.positive,
+                   dialog.drop):
+        assert widget.toolTip()

@@ -1,0 +1,50 @@
+"""The workspace at 1280 x 800: columns that keep still, a table without a side scroll."""
+
+from PySide6.QtCore import Qt
+
+from test_gui_fixtures import gauge_points, load_points, settle, temporary_settings, window  # noqa: F401
+
+
+def test_the_fit_settings_column_keeps_its_width_when_the_kernel_changes(window, qtbot):
+    load_points(window, qtbot, gauge_points())
+    dock = window.docks["Fit settings"]
+    before = dock.width()
+    window.controls.kernel.setFocus()
+    for _ in range(2):                        # linear -> polynomial -> rbf
+        qtbot.keyClick(window.controls.kernel, Qt.Key_Down)
+        qtbot.wait(20)
+        assert dock.width() == before
+    assert window.document.config.kernel == "rbf"
+
+
+def test_the_canvas_is_the_largest_part_of_the_window(window, qtbot):
+    canvas = window.canvas
+    area = canvas.width() * canvas.height()
+    for dock in window.docks.values():
+        if dock.isVisible():
+            assert area > dock.width() * dock.height()
+
+
+def test_the_read_outs_and_the_study_tabs_are_in_sight_at_the_start(window, qtbot):
+    for title in ("Fit settings", "Summary", "Studies", "Point"):
+        assert window.docks[title].isVisible() and not window.docks[title].isFloating()
+    tabs = [window.workspace.studies.tabText(i) for i in range(window.workspace.studies.count())]
+    assert tabs[:1] == ["Points"] and "C sweep" in tabs and "Compare" in tabs and "Note" in tabs
+
+
+def test_the_points_table_shows_every_column_without_scrolling_sideways(window, qtbot):
+    load_points(window, qtbot, gauge_points(overlap=True))
+    window.points_table.model.flush()
+    view = window.points_table.view
+    qtbot.wait(20)
+    header = view.horizontalHeader()
+    assert header.length() <= view.viewport().width()
+    assert view.horizontalScrollBar().maximum() == 0
+    for column in range(header.count()):
+        assert header.sectionSize(column) >= 36 and not header.isSectionHidden(column)
+
+
+def test_every_points_table_header_explains_itself_in_a_tooltip(window, qtbot):
+    model = window.points_table.model
+    for column in range(model.columnCount()):
+        assert len(model.headerData(column, Qt.Horizontal, Qt.ToolTipRole) or "") > 10

@@ -1,4 +1,9 @@
-"""``slackline render EXPERIMENT.json -o FIGURE``: the canvas picture, no window needed."""
+"""``slackline render EXPERIMENT.json -o FIGURE``: the canvas picture, no window needed.
+
+FIGURE ending in .json writes the figure's geometry as data instead
+(app.canvas.figure_data): boundary, band, support vectors, slack segments
+and w, in the data's own units.
+"""
 
 from __future__ import annotations
 
@@ -8,13 +13,15 @@ from pathlib import Path
 from app.canvas.figure import DEFAULT_SIZE, FORMATS, parse_size, save_figure  # no Qt at import
 from solver import InputError
 
+GEOMETRY_FORMAT = ".json"
 
 
 def add_arguments(parser) -> None:
     parser.add_argument("experiment", metavar="EXPERIMENT.json",
                         help="an experiment file saved by Slackline")
     parser.add_argument("-o", "--output", required=True, metavar="FIGURE",
-                        help="the picture to write: .png or .svg")
+                        help="the picture to write: .png or .svg; or .json for the "
+                             "figure's geometry as data")
     parser.add_argument("--size", default=f"{DEFAULT_SIZE[0]}x{DEFAULT_SIZE[1]}",
                         metavar="WxH", help="picture size in pixels (default 1200x800)")
 
@@ -23,14 +30,25 @@ def run(args) -> int:
     from solver.files import load_experiment
     from solver import fit
 
+    suffix = Path(args.output).suffix.lower()
+    if suffix not in FORMATS + (GEOMETRY_FORMAT,):
+        raise InputError(f"the figure must end in .png or .svg (or .json for its geometry as data); got {args.output!r}")
     width, height = parse_size(args.size)
-    if Path(args.output).suffix.lower() not in FORMATS:
-        raise InputError(f"the figure must end in .png or .svg; got {args.output!r}")
     experiment = load_experiment(args.experiment)
     dataset = experiment.dataset
     # the stored figures are a record; the picture is drawn from a fresh fit of
     # the same points and settings, the same numbers `slackline check` verifies
     result = fit(dataset.X, dataset.y, experiment.config)
+    if suffix == GEOMETRY_FORMAT:
+        from app.canvas.figure_data import figure_json
+        from solver.files.atomic import atomic_write_text
+        try:
+            atomic_write_text(args.output, figure_json(result, dataset.feature_names))
+        except OSError as exc:
+            raise InputError(f"could not write {args.output}: {exc.strerror}; check that "
+                             f"the folder exists and is writable") from None
+        print(f"wrote {args.output} (figure geometry)", file=sys.stderr)
+        return 0
     path = save_figure(args.output, dataset, result, width, height)
     print(f"wrote {path} ({width}x{height})", file=sys.stderr)
     return 0

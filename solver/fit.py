@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -133,12 +133,17 @@ def _result(X, y, penalties, config, solved: _Solved, seconds: float) -> FitResu
     dual = float(alpha.sum()) - 0.5 * solved.dual_quadratic
     relative_gap = abs(primal - dual) / max(1.0, abs(primal))
     status, support = _classify(alpha, penalties, slack, margin, relative_gap)
+    # alphas within the solver's accuracy of 0 or C_i are reported as exactly that,
+    # so status and alpha agree everywhere (inspector, table, --json, exports);
+    # the objectives above stay those of the iterate the solver reached
+    alpha = _snap_to_bounds(alpha, penalties, relative_gap)
+    model = _without_zero_terms(solved.model, solved.alpha, alpha)
     kkt = _kkt_residuals(alpha, penalties, y, margin, slack, status)
     # cvxopt may stop on a singular KKT system a step short of its own test;
     # the optimum is still in hand when our own gap and KKT figures say so.
     converged = solved.status == "optimal" or (relative_gap <= 1e-7 and kkt.largest <= 1e-5)
     result = FitResult(config=config, X=X, y=y, alpha=alpha, penalties=penalties,
-                       decision=decision, status=status, support=support, model=solved.model,
+                       decision=decision, status=status, support=support, model=model,
                        norm_w=solved.norm_w, primal_objective=primal, dual_objective=dual,
                        kkt=kkt, iterations=solved.iterations, seconds=seconds,
                        converged=converged, solver_status=solved.status, rounds=solved.rounds,
@@ -182,12 +187,39 @@ def _alpha_tolerance(relative_gap: float) -> float:
     return float(np.clip(np.sqrt(relative_gap), 1e-8, 1e-4))
 
 
-def _classify(alpha, penalties, slack, margin, relative_gap):
-    tau = _alpha_tolerance(relative_gap)
+def _bound_masks(alpha, penalties, tau):
+    """(alpha is 0, alpha is C_i) to relative accuracy ``tau``; hard margin has no C_i."""
     finite = np.isfinite(penalties)
     scale = np.where(finite, penalties, max(float(alpha.max()), 1e-300))
     is_zero = alpha <= tau * scale
     at_bound = finite & (alpha >= (1.0 - tau) * np.where(finite, penalties, 0.0))
+    return is_zero, at_bound
+
+
+def _snap_to_bounds(alpha, penalties, relative_gap):
+    is_zero, at_bound = _bound_masks(alpha, penalties, _alpha_tolerance(relative_gap))
+    return np.where(is_zero, 0.0, np.where(at_bound, penalties, alpha))
+
+
+def _without_zero_terms(model, solver_alpha, alpha):
+    """A dual model without the terms whose alpha was reported as exactly 0.
+
+    Its support vectors are then the fit's own support set; the dropped terms
+    were below the solver's accuracy (about 1e-13 C_i), so f does not move.
+    """
+    if model.support_vectors is None:
+        return model
+    rows = np.flatnonzero(solver_alpha > 0)            # the points behind support_vectors
+    keep = alpha[rows] > 0
+    if keep.all():
+        return model
+    return replace(model, support_vectors=model.support_vectors[keep],
+                               coefficients=model.coefficients[keep])
+
+
+def _classify(alpha, penalties, slack, margin, relative_gap):
+    tau = _alpha_tolerance(relative_gap)
+    is_zero, at_bound = _bound_masks(alpha, penalties, tau)
     margin_tol = max(1e-7, tau)
     status = np.full(len(alpha), ON_MARGIN, dtype=object)
     status[is_zero] = OUTSIDE

@@ -91,7 +91,7 @@ def test_the_influence_view_ranks_support_vectors_and_draws_the_boundary_without
     assert window.document.selection == {top.point}
     assert evidence.ghost is top
     gx, gy = window.evidence_actions.layer.ghost.getData()
-    assert gx is not None and len(gx) == 2
+    assert gx is not None and len(gx) == 2        # a line: its two ends on the view's edges
     keep = np.arange(len(data.y)) != top.point
     svc = SVC(kernel="linear", C=result.config.C, tol=1e-10).fit(data.X[keep], data.y[keep])
     # the ghost is the reference's boundary w.x + b = 0 (to the reference's accuracy)
@@ -138,7 +138,7 @@ def test_the_report_and_compare_view_give_the_held_out_check_beside_the_training
     predicted = result.predict(data.X[[2, 14, 19]])
     (tn, fp), (fn, tp) = confusion_matrix(data.y[[2, 14, 19]], predicted, labels=[-1, 1])
     expected = f"On 3 held-out points the error is {(fp + fn) / 3:.1%}"
-    compare = window.optional_panels["ComparePanel"]
+    compare = window.compare
     window.document.pin_current()
     assert expected in compare.summary.text()
     path = compare.export_report_to(tmp_path / "report.pdf")

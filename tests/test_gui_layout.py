@@ -48,3 +48,47 @@ def test_every_points_table_header_explains_itself_in_a_tooltip(window, qtbot):
     model = window.points_table.model
     for column in range(model.columnCount()):
         assert len(model.headerData(column, Qt.Horizontal, Qt.ToolTipRole) or "") > 10
+
+
+def _show_sweep_tab(window, qtbot):
+    tabs = window.workspace.studies
+    bar = tabs.tabBar()
+    index = next(i for i in range(tabs.count()) if tabs.tabText(i) == "C sweep")
+    qtbot.mouseClick(bar, Qt.LeftButton, pos=bar.tabRect(index).center())
+    qtbot.wait(50)
+    return window.sweep
+
+
+def test_at_1280_by_800_every_sweep_chart_is_at_least_220_px_tall(window, qtbot):
+    panel = _show_sweep_tab(window, qtbot)
+    assert panel.isVisible()
+    for plot in panel.chart.plots.values():
+        assert plot.sceneBoundingRect().height() >= 220
+
+
+def test_at_1280_by_800_the_first_row_of_sweep_charts_is_fully_in_view(window, qtbot):
+    panel = _show_sweep_tab(window, qtbot)
+    area = panel.chart_area
+    first = next(iter(panel.chart.plots.values()))
+    assert first.sceneBoundingRect().bottom() <= area.viewport().height() + 2
+
+
+def test_on_a_wide_screen_the_four_sweep_charts_sit_in_one_row(window, qtbot):
+    window.resize(1920, 1080)
+    panel = _show_sweep_tab(window, qtbot)
+    qtbot.wait(50)
+    tops = {round(plot.sceneBoundingRect().top()) for plot in panel.chart.plots.values()}
+    assert len(tops) == 1
+    for plot in panel.chart.plots.values():
+        assert plot.sceneBoundingRect().height() >= 220
+
+
+def test_the_compare_tables_show_at_least_six_rows_at_1280_by_800(window, qtbot):
+    tabs = window.workspace.studies
+    window.workspace.show_study("Compare")
+    qtbot.wait(50)
+    panel = window.compare
+    for table in (panel.table, panel.changes):
+        rows = table.viewport().height() // table.verticalHeader().defaultSectionSize()
+        assert rows >= 6
+    assert tabs.currentWidget() is panel

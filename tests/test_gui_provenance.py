@@ -31,6 +31,6 @@ def test_the_report_of_a_moved_point_says_edited_since_import(window, qtbot, tmp
     load_points(window, qtbot, _imported())
     window.document.move_points([0], [[0.0, 0.0]])
     settle(window, qtbot)
-    panel = window.optional_panels["ComparePanel"]
+    panel = window.compare
     text = pdf_text(panel.export_report_to(tmp_path / "report.pdf"))[1]
     assert "edited since import from batch-7.csv" in text

@@ -6,6 +6,7 @@ import numpy as np
 from PySide6.QtCore import QElapsedTimer, QTimer
 
 import app.document.worker
+from app.document.document import RESULT
 from solver.config import FitConfig
 from solver.files.dataset import Dataset
 
@@ -48,7 +49,8 @@ def test_the_busy_indicator_shows_while_a_solve_runs(window, qtbot, monkeypatch)
 def test_only_the_latest_of_many_requests_reaches_the_screen(window, qtbot):
     load_points(window, qtbot, gauge_points(overlap=True))
     shown = []
-    window.document.result_changed.connect(lambda: shown.append(window.document.result))
+    window.document.changed.connect(
+        lambda changes: shown.append(window.document.result) if RESULT in changes else None)
     for C in (0.01, 0.1, 1.0, 10.0, 3.0):
         window.document.set_C(C)
     settle(window, qtbot)

@@ -5,6 +5,11 @@ Click a point         select it (Ctrl: add to / remove from the selection)
 Drag a point          move it, or the whole selection it belongs to; the fit follows
 Ctrl + drag           box-select
 Drag empty space      pan; wheel or right-drag zooms (pyqtgraph's usual gestures)
+
+Points are picked by pyqtgraph itself: each marker carries its point's index
+as item data; a click on a marker arrives through the item's sigClicked, a
+drag asks the items' pointsAt; a click that no marker takes reaches the view
+box, which adds a point.
 """
 
 from __future__ import annotations
@@ -19,8 +24,8 @@ from PySide6.QtWidgets import QGraphicsRectItem, QLabel
 from app.canvas import geometry
 from app.canvas.palette import palette
 from app.canvas.scene import SceneItems
+from app.document.document import METADATA, PINNED, POINTS, RESULT, SELECTION
 
-HIT_RADIUS_PX = 9
 _drag_ids = itertools.count(1)
 
 
@@ -56,7 +61,7 @@ class EditViewBox(pg.ViewBox):
             if (ev.modifiers() | canvas.press_modifiers) & Qt.ControlModifier:
                 self._start_box(start)
             else:
-                hit = canvas.hit_test(start.x(), start.y())
+                hit = canvas.point_at(ev.buttonDownScenePos())
                 if hit is not None:
                     selection = doc.selection
                     indices = sorted(selection) if hit in selection else [hit]
@@ -118,6 +123,8 @@ class Canvas(pg.PlotWidget):
         view.setAspectLocked(True)
         view.disableAutoRange()
         self.scene_items = SceneItems(self.plot)
+        for item in self.scene_items.marker_items():
+            item.sigClicked.connect(self._marker_clicked)
         self._stale = QLabel(self)
         self._stale.setStyleSheet("background: rgba(255, 244, 214, 235); color: #5a4300;"
                                   "border: 1px solid #d9b44a; padding: 3px 6px;")
@@ -125,10 +132,7 @@ class Canvas(pg.PlotWidget):
         self._view_timer = QTimer(self, singleShot=True, interval=40)
         self._view_timer.timeout.connect(self._refresh_view)
         view.sigRangeChanged.connect(self._range_changed)
-        document.points_changed.connect(self._points_changed)
-        document.result_changed.connect(self._result_changed)
-        document.selection_changed.connect(self._selection_changed)
-        document.pinned_changed.connect(self._pinned_changed)
+        document.changed.connect(self._document_changed)
         self.fit_view_to_data()
         self._points_changed()
 
@@ -156,25 +160,27 @@ class Canvas(pg.PlotWidget):
         scene = self._view.mapViewToScene(QPointF(x, y))
         return self.mapFromScene(scene)
 
-    def hit_test(self, x: float, y: float):
-        """Index of the point within HIT_RADIUS_PX of (x, y), nearest first, or None."""
-        X = self.document.X
-        if not len(X):
-            return None
-        sx, sy = self._view.viewPixelSize()
-        d2 = ((X[:, 0] - x) / sx) ** 2 + ((X[:, 1] - y) / sy) ** 2
-        best = int(np.argmin(d2))
-        return best if d2[best] <= HIT_RADIUS_PX ** 2 else None
+    def point_at(self, scene_pos):
+        """Index of the point whose marker is under ``scene_pos``, or None (pointsAt)."""
+        for item in self.scene_items.marker_items():
+            spots = item.pointsAt(item.mapFromScene(scene_pos))
+            if len(spots):
+                return int(spots[0].data())
+        return None
+
+    def _marker_clicked(self, _item, spots, ev):
+        """A left click on a marker (pyqtgraph's sigClicked): select its point."""
+        if not len(spots):
+            return
+        doc, hit = self.document, int(spots[0].data())
+        if ev.modifiers() & Qt.ControlModifier:
+            doc.set_selection(doc.selection ^ {hit})
+        else:
+            doc.set_selection({hit})
 
     def clicked(self, x: float, y: float, modifiers):
+        """A left click that no marker took: add a point there (Ctrl: clear the selection)."""
         doc = self.document
-        hit = self.hit_test(x, y)
-        if hit is not None:
-            if modifiers & Qt.ControlModifier:
-                doc.set_selection(doc.selection ^ {hit})
-            else:
-                doc.set_selection({hit})
-            return
         if modifiers & Qt.ControlModifier:
             doc.set_selection(set())
             return
@@ -182,6 +188,16 @@ class Canvas(pg.PlotWidget):
         doc.add_point(x, y, sign)
 
     # -- document -> items -------------------------------------------------------
+    def _document_changed(self, changes):
+        if changes & {POINTS, METADATA}:
+            self._points_changed()
+        if changes & {POINTS, RESULT}:
+            self._result_changed()
+        elif SELECTION in changes:
+            self._selection_changed()
+        if PINNED in changes:
+            self._pinned_changed()
+
     def _points_changed(self):
         doc = self.document
         self.scene_items.set_points(doc.X, doc.y)

@@ -9,10 +9,10 @@ None of them take part in clicks: the view box edits the training points.
 
 from __future__ import annotations
 
-import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import Qt
 
+from app.canvas import geometry
 from app.canvas.palette import class_colour, palette
 
 SCORED_SYMBOL = "d"
@@ -36,7 +36,7 @@ class EvidenceLayer:
             plot.addItem(item, ignoreBounds=True)
         self.ghost = pg.PlotDataItem(pen=pg.mkPen(palette()["selection"], width=2,
                                                   style=Qt.DashDotLine),
-                                     connect="pairs", name="without the chosen point")
+                                     connect="finite", name="without the chosen point")
         self.ghost.setZValue(-7)
         plot.addItem(self.ghost, ignoreBounds=True)
         evidence.changed.connect(self.redraw_points)
@@ -68,9 +68,15 @@ class EvidenceLayer:
         if entry is None:
             self.ghost.setData([], [])
             return
-        zero, _ = self.canvas.scene_items._level_sets(entry, self.canvas.view_rect())
-        if not len(zero):
+        rect = self.canvas.view_rect()
+        if entry.w is not None:                 # a line: exact ends on the view's edges
+            ends = geometry.clip_line(entry.w, -entry.b, rect)
+            lines = [] if ends is None else [ends]
+        else:                                   # a contour of f = 0 on the view's lattice
+            xs, ys, values = geometry.lattice_values(entry.decision_function, rect)
+            lines = geometry.level_polylines(values, xs, ys, 0.0)
+        if not lines:
             self.ghost.setData([], [])
             return
-        zero = np.asarray(zero)
-        self.ghost.setData(zero[:, 0], zero[:, 1])
+        joined = geometry.with_breaks(lines)
+        self.ghost.setData(joined[:, 0], joined[:, 1])

@@ -7,6 +7,8 @@ screen those numbers land.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 
 
@@ -72,40 +74,112 @@ def linear_slack_targets(X, y, slack, w):
     return X + step * w[None, :]
 
 
-def gradient_slack_targets(result, X, y, slack, reach, steps: int = 32):
-    """Kernel fits: walk from each point along the local gradient of f to f = y_i.
+def axis_steps(rect, relative: float = 1e-5) -> np.ndarray:
+    """Finite-difference steps (hx, hy), each relative to its own axis's span."""
+    x0, x1, y0, y1 = rect
+    spans = np.array([abs(x1 - x0), abs(y1 - y0)], dtype=float)
+    return relative * np.maximum(spans, 1e-12)
 
-    The direction is a central difference of result.decision_function (step
-    reach * 1e-5).  Along it f is sampled at ``steps`` distances up to
-    ``reach``; the first crossing of the point's own edge level y_i is
-    interpolated linearly.  A point whose edge lies farther gets a short stub
-    in the right direction.
+
+def gradient(f, points, steps) -> np.ndarray:
+    """Central differences of f at ``points``: (f(x + h e_k) - f(x - h e_k)) / 2h."""
+    points = np.asarray(points, dtype=float).reshape(-1, 2)
+    hx, hy = float(steps[0]), float(steps[1])
+    offsets = np.array([[hx, 0.0], [-hx, 0.0], [0.0, hy], [0.0, -hy]])
+    probe = (points[:, None, :] + offsets[None, :, :]).reshape(-1, 2)
+    values = np.asarray(f(probe), dtype=float).reshape(-1, 4)
+    return np.column_stack([(values[:, 0] - values[:, 1]) / (2.0 * hx),
+                            (values[:, 2] - values[:, 3]) / (2.0 * hy)])
+
+
+def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iterations=40):
+    """Move each point onto {f = level} by Newton steps along the gradient.
+
+    x <- x + (level - f(x)) g / |g|^2, g = grad f(x): the Newton step for
+    f(x + t g) = level, quadratically convergent near the level set.  A step
+    longer than ``max_step`` is shortened, and halved while it does not bring
+    f closer to the level (a flat or curving f).  Returns (points, converged)
+    with converged = |f - level| <= tolerance.
     """
-    h = max(float(reach), 1e-12) * 1e-5
-    offsets = np.array([[h, 0.0], [-h, 0.0], [0.0, h], [0.0, -h]])
-    probe = (X[:, None, :] + offsets[None, :, :]).reshape(-1, 2)
-    values = result.decision_function(probe).reshape(-1, 4)
-    grad = np.column_stack([values[:, 0] - values[:, 1], values[:, 2] - values[:, 3]])
-    norm = np.maximum(np.linalg.norm(grad, axis=1), 1e-300)[:, None]
-    # walk towards larger y_i f: along +grad for y = +1, along -grad for y = -1
-    direction = grad / norm * y[:, None]
-    distances = np.linspace(0.0, reach, steps + 1)
-    walk = X[:, None, :] + distances[None, :, None] * direction[:, None, :]
-    margin = y[:, None] * result.decision_function(walk.reshape(-1, 2)).reshape(len(X), -1)
-    reached = margin >= 1.0
-    first = np.where(reached.any(axis=1), reached.argmax(axis=1), steps)
-    before = np.maximum(first - 1, 0)
-    rows = np.arange(len(X))
-    m0, m1 = margin[rows, before], margin[rows, first]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        t = np.where(m1 > m0, np.clip((1.0 - m0) / (m1 - m0), 0.0, 1.0), 1.0)
-    length = distances[before] + t * (distances[first] - distances[before])
-    # the edge out of reach, or reached only far along a curving f: fall back to
-    # the first-order length xi_i / |grad f|, kept short (a stub showing direction)
-    first_order = np.minimum(slack / norm[:, 0], 0.15 * reach)
-    trusted = reached.any(axis=1) & (length <= 2.0 * first_order + 1e-12)
-    length = np.where(trusted, length, first_order)
-    return X + length[:, None] * direction
+    x = np.array(points, dtype=float).reshape(-1, 2)
+    level = np.broadcast_to(np.asarray(level, dtype=float), (len(x),)).copy()
+    if not len(x):
+        return x, np.zeros(0, dtype=bool)
+    residual = level - np.asarray(f(x), dtype=float)
+    for _ in range(iterations):
+        active = np.flatnonzero(np.abs(residual) > tolerance)
+        if not len(active):
+            break
+        g = gradient(f, x[active], steps)
+        norm2 = np.maximum(np.einsum("ij,ij->i", g, g), 1e-300)
+        step = (residual[active] / norm2)[:, None] * g
+        length = np.linalg.norm(step, axis=1)
+        step *= np.minimum(1.0, max_step / np.maximum(length, 1e-300))[:, None]
+        for _halving in range(8):
+            trial = x[active] + step
+            trial_residual = level[active] - np.asarray(f(trial), dtype=float)
+            better = np.abs(trial_residual) < np.abs(residual[active])
+            x[active[better]] = trial[better]
+            residual[active[better]] = trial_residual[better]
+            if better.all():
+                break
+            active, step = active[~better], 0.5 * step[~better]
+    return x, np.abs(residual) <= tolerance
+
+
+def slack_targets(f, X, y, rect, tolerance=1e-9):
+    """Kernel fits: where each point meets its own class's margin edge f = y_i.
+
+    Newton steps along the gradient of f from the point (newton_to_level),
+    with finite-difference steps relative to each axis of ``rect``.  Returns
+    (targets, converged); a point whose edge cannot be reached has
+    converged False and is not drawn.
+    """
+    x0, x1, y0, y1 = rect
+    reach = 0.25 * max(abs(x1 - x0), abs(y1 - y0))
+    return newton_to_level(f, X, np.asarray(y, dtype=float), axis_steps(rect), reach,
+                           tolerance=tolerance)
+
+
+def level_polylines(values, xs, ys, level: float) -> list[np.ndarray]:
+    """The level set {f = level} of values[iy, ix] over the grid as polylines.
+
+    Marching squares by contourpy (matplotlib's contouring library): each
+    polyline is a (k x 2) array of vertices; closed loops repeat their first
+    vertex.
+    """
+    import contourpy
+    generator = contourpy.contour_generator(xs, ys, values,
+                                            line_type=contourpy.LineType.Separate)
+    return [np.asarray(line, dtype=float) for line in generator.lines(level) if len(line) >= 2]
+
+
+def projected_polylines(f, lines, level: float, rect, tolerance=1e-9) -> list[np.ndarray]:
+    """``lines`` with every vertex moved onto {f = level} by Newton steps.
+
+    The grid's linear interpolation leaves vertices a little off the level
+    set; a vertex that does not converge is dropped, splitting its line.
+    """
+    if not lines:
+        return []
+    counts = [len(line) for line in lines]
+    moved, converged = newton_to_level(f, np.concatenate(lines), level, axis_steps(rect),
+                                       0.05 * max(rect[1] - rect[0], rect[3] - rect[2]),
+                                       tolerance=tolerance)
+    out = []
+    for chunk, ok in zip(np.split(moved, np.cumsum(counts)[:-1]),
+                         np.split(converged, np.cumsum(counts)[:-1])):
+        pieces = np.split(np.arange(len(chunk)), np.flatnonzero(np.diff(ok.astype(int))) + 1)
+        out.extend(chunk[piece] for piece in pieces if ok[piece[0]] and len(piece) >= 2)
+    return out
+
+
+def with_breaks(lines) -> np.ndarray:
+    """Polylines as one (k x 2) array with NaN rows between them (connect="finite")."""
+    if not lines:
+        return np.zeros((0, 2))
+    gap = np.full((1, 2), np.nan)
+    return np.concatenate([part for line in lines for part in (line, gap)][:-1])
 
 
 def padded_bounds(X, pad: float = 0.12):
@@ -119,49 +193,6 @@ def padded_bounds(X, pad: float = 0.12):
     return (float(lo[0]), float(hi[0]), float(lo[1]), float(hi[1]))
 
 
-def contour_segments(values, xs, ys, level: float) -> np.ndarray:
-    """Marching squares: the level set of values[iy, ix] as (2k x 2) segment end points.
-
-    Each grid cell whose corners straddle ``level`` contributes one segment
-    (two for a saddle) between linearly interpolated edge crossings.  Drawn
-    with connect="pairs".
-    """
-    v00, v10 = values[:-1, :-1], values[:-1, 1:]   # (y, x), (y, x + 1)
-    v01, v11 = values[1:, :-1], values[1:, 1:]     # (y + 1, x), (y + 1, x + 1)
-    x0, x1 = xs[:-1][None, :], xs[1:][None, :]
-    y0, y1 = ys[:-1][:, None], ys[1:][:, None]
-    shape = v00.shape
-
-    def crossing(a, b, pa, pb):
-        with np.errstate(divide="ignore", invalid="ignore"):
-            t = np.clip((level - a) / (b - a), 0.0, 1.0)
-        return ((a > level) != (b > level)), pa + t * (pb - pa)
-
-    bx, by = np.broadcast_to(x0, shape), np.broadcast_to(y0, shape)
-    ex, ey = np.broadcast_to(x1, shape), np.broadcast_to(y1, shape)
-    m0, px0 = crossing(v00, v10, bx, ex)           # bottom edge, varies in x at y0
-    m1, py1 = crossing(v10, v11, by, ey)           # right edge, varies in y at x1
-    m2, px2 = crossing(v01, v11, bx, ex)           # top edge, varies in x at y1
-    m3, py3 = crossing(v00, v01, by, ey)           # left edge, varies in y at x0
-    points = np.stack([np.stack([px0, by], -1), np.stack([ex, py1], -1),
-                       np.stack([px2, ey], -1), np.stack([bx, py3], -1)], axis=2)
-    masks = np.stack([m0, m1, m2, m3], axis=-1).reshape(-1, 4)
-    points = points.reshape(-1, 4, 2)
-    count = masks.sum(axis=1)
-    two = count == 2
-    rows, edges = np.nonzero(masks[two])
-    segments = [points[two][rows, edges]]
-    four = np.flatnonzero(count == 4)
-    if len(four):
-        centre = (v00 + v10 + v01 + v11).reshape(-1)[four] / 4 > level
-        low = (v00.reshape(-1)[four] > level) == centre
-        # a saddle: pair each crossing with its neighbour on the centre's side
-        for a, b in ((0, np.where(low, 1, 3)), (2, np.where(low, 3, 1))):
-            pair = np.stack([points[four, a], points[four, b]], axis=1).reshape(-1, 2)
-            segments.append(pair)
-    return np.concatenate(segments) if segments else np.zeros((0, 2))
-
-
 def comparable_spans(X, factor: float = 4.0) -> bool:
     """True when the two features span ranges within ``factor`` of each other,
     so equal axis scales keep both readable (and w visibly perpendicular)."""
@@ -170,3 +201,70 @@ def comparable_spans(X, factor: float = 4.0) -> bool:
     spans = X.max(axis=0) - X.min(axis=0)
     small, large = float(min(spans)), float(max(spans))
     return small > 0 and large / small <= factor
+
+
+KERNEL_GRID = 120   # contour lattice of kernel fits (the canvas shades on the same one)
+
+
+@dataclass(frozen=True)
+class FitGeometry:
+    """What a picture of a fit draws, in the data's own units.
+
+    boundary, band_positive, band_negative: polylines (k x 2 arrays) of
+    f = 0, +1, -1; slack_points: indices of points with slack whose segment
+    runs from slack_from[i] to slack_to[i] on the point's own margin edge;
+    weight: (foot on f = 0, tip on f = +1) of the w arrow, or None.
+    """
+    boundary: list
+    band_positive: list
+    band_negative: list
+    slack_points: np.ndarray
+    slack_from: np.ndarray
+    slack_to: np.ndarray
+    weight: tuple | None
+
+
+def fit_geometry(result, rect, grid_values=None, project: bool = True) -> FitGeometry:
+    """The level sets, slack segments and w arrow of ``result`` over ``rect``.
+
+    Linear fits: exact straight lines.  Kernel fits: contours of f on a
+    lattice (``grid_values`` = (xs, ys, values) when the caller has it),
+    with ``project`` moving every vertex onto its level set by Newton steps.
+    """
+    if result.w is not None:
+        lines = {}
+        for level in (0.0, 1.0, -1.0):
+            ends = clip_line(result.w, level - result.b, rect)
+            lines[level] = [] if ends is None else [ends]
+    else:
+        xs, ys, values = grid_values or lattice_values(result.decision_function, rect)
+        lines = {level: level_polylines(values, xs, ys, level) for level in (0.0, 1.0, -1.0)}
+        if project:
+            lines = {level: projected_polylines(result.decision_function, found, level, rect)
+                     for level, found in lines.items()}
+    with_slack = np.flatnonzero(result.slack > 1e-9)
+    X, y = result.X[with_slack], result.y[with_slack]
+    if result.w is not None:
+        targets = linear_slack_targets(X, y, result.slack[with_slack], result.w)
+        reached = np.ones(len(X), dtype=bool)
+    else:
+        targets, reached = slack_targets(result.decision_function, X, y, rect)
+    return FitGeometry(boundary=lines[0.0], band_positive=lines[1.0], band_negative=lines[-1.0],
+                       slack_points=with_slack[reached], slack_from=X[reached],
+                       slack_to=targets[reached], weight=weight_arrow(result))
+
+
+def lattice_values(f, rect, size: int = KERNEL_GRID):
+    """(xs, ys, values[iy, ix]) of f on a size x size lattice over rect."""
+    xs, ys, points = grid(rect, size)
+    return xs, ys, np.asarray(f(points), dtype=float).reshape(len(ys), len(xs))
+
+
+def weight_arrow(result):
+    """(foot, tip) of w drawn from f = 0 to f = +1 (length 1/|w|, half the margin
+    width), based at the boundary point nearest the points' mean; None without w."""
+    if result.w is None or not np.any(result.w):
+        return None
+    anchor = result.X.mean(axis=0) if len(result.X) else np.zeros(2)
+    foot = foot_on_boundary(result.w, result.b, anchor)
+    return foot, foot + result.w / np.dot(result.w, result.w)

@@ -15,7 +15,7 @@ from app.canvas import geometry
 from app.canvas.scale_note import ScaleNote
 from app.canvas.palette import class_colour, class_symbol, palette
 
-KERNEL_GRID = 120   # contour and shading lattice for kernel fits
+KERNEL_GRID = geometry.KERNEL_GRID   # contour and shading lattice for kernel fits
 LINEAR_GRID = 64    # linear f is a plane: a coarse shading grid is exact enough
 SHADE_LIMIT = 2.0   # f is shaded from -2 to +2; beyond, the colour saturates
 
@@ -37,9 +37,10 @@ def _shade_lookup() -> np.ndarray:
     return np.rint(table).astype(np.ubyte)
 
 
-def _pass_clicks(item):
-    """Let clicks on markers fall through to the view box, which owns editing."""
-    item.mouseClickEvent = lambda ev: ev.ignore()
+def _show_lines(item, lines):
+    """Polylines into one line item, NaN rows between them (connect="finite")."""
+    joined = geometry.with_breaks(lines)
+    item.setData(joined[:, 0], joined[:, 1])
 
 
 class SceneItems:
@@ -60,11 +61,14 @@ class SceneItems:
             plot.addItem(item, ignoreBounds=True)
             return item
 
+        finite = dict(connect="finite")     # polylines with NaN breaks
         self.ghost_boundary = line(colours["ghost"], 2, Qt.DashLine, -8,
-                                   name="pinned fit (ghost)")
-        self.ghost_band = line(colours["ghost"], 1, Qt.DotLine, -8)
-        self.band = line(colours["band"], 1.4, Qt.DashLine, -4, name="margin  f = \u00b11")
-        self.boundary = line(colours["boundary"], 2.6, Qt.SolidLine, -3, name="boundary  f = 0")
+                                   name="pinned fit (ghost)", **finite)
+        self.ghost_band = line(colours["ghost"], 1, Qt.DotLine, -8, **finite)
+        self.band = line(colours["band"], 1.4, Qt.DashLine, -4, name="margin  f = \u00b11",
+                         **finite)
+        self.boundary = line(colours["boundary"], 2.6, Qt.SolidLine, -3,
+                             name="boundary  f = 0", **finite)
         self.slack = line(colours["slack"], 1.8, Qt.SolidLine, -2, name="slack \u03be")
         self.weight = line(colours["weight_vector"], 2.4, Qt.SolidLine, -1, name="w")
         self.arrow = pg.ArrowItem(pen=pg.mkPen(colours["weight_vector"]), headLen=13,
@@ -81,19 +85,16 @@ class SceneItems:
                                       pen=pg.mkPen(colours["marker_outline"], width=1.0),
                                       brush=pg.mkBrush(class_colour(sign)), name=None)
             item.setZValue(5)
-            _pass_clicks(item)  # the view box edits points
             plot.addItem(item)
             self.points[sign] = item
         self.rings = pg.ScatterPlotItem(symbol="o", size=17, brush=None,
                                         pen=pg.mkPen(colours["support_ring"], width=1.6),
                                         name="support vector")
         self.rings.setZValue(4)
-        _pass_clicks(self.rings)
         plot.addItem(self.rings, ignoreBounds=True)
         self.selected = pg.ScatterPlotItem(symbol="o", size=23, brush=None,
                                            pen=pg.mkPen(colours["selection"], width=3.2))
         self.selected.setZValue(6)
-        _pass_clicks(self.selected)
         plot.addItem(self.selected, ignoreBounds=True)
         self.legend = None
         if legend:
@@ -122,14 +123,20 @@ class SceneItems:
             self.legend.getLabel(self.legend_class[sign]).setText(f"{text}  ({code})")
 
     # -- points ------------------------------------------------------------
+    # every marker carries its point's index as item data, so pyqtgraph's own
+    # picking (pointsAt, sigClicked) answers "which point": see marker_items
     def set_points(self, X: np.ndarray, y: np.ndarray):
         for sign, item in self.points.items():
-            chosen = X[y == sign]
-            item.setData(x=chosen[:, 0], y=chosen[:, 1])
+            rows = np.flatnonzero(y == sign)
+            item.setData(x=X[rows, 0], y=X[rows, 1], data=rows)
 
     def set_selection(self, X: np.ndarray, indices):
-        chosen = X[sorted(indices)] if len(indices) else np.zeros((0, 2))
-        self.selected.setData(x=chosen[:, 0], y=chosen[:, 1])
+        rows = np.array(sorted(indices), dtype=int)
+        self.selected.setData(x=X[rows, 0], y=X[rows, 1], data=rows)
+
+    def marker_items(self):
+        """The items whose markers stand for points, topmost first."""
+        return (self.selected, self.points[1], self.points[-1], self.rings)
 
     # -- the fit -----------------------------------------------------------
     def set_result(self, result, X: np.ndarray, y: np.ndarray, rect):
@@ -145,15 +152,15 @@ class SceneItems:
             self.scale_note.update(None, None)
             return
         matches = len(result.y) == len(X) and np.array_equal(result.X, X)
-        self._draw_field(result, rect)
+        shape = self._draw_field(result, rect)
         if matches:
             support = result.X[result.support]
-            self.rings.setData(x=support[:, 0], y=support[:, 1])
-            self._draw_slack(result, rect)
+            self.rings.setData(x=support[:, 0], y=support[:, 1], data=result.support)
+            self._draw_slack(shape)
         else:
             self.rings.setData([], [])
             self.slack.setData([], [])
-        self._draw_weight(result, X)
+        self._draw_weight(result)
         self._legend_lists_weight(result.w is not None)
 
     def _legend_lists_weight(self, show: bool):
@@ -176,9 +183,9 @@ class SceneItems:
             self.ghost_boundary.setData([], [])
             self.ghost_band.setData([], [])
             return
-        zero, band = self._level_sets(pinned, rect)
-        self.ghost_boundary.setData(zero[:, 0], zero[:, 1])
-        self.ghost_band.setData(band[:, 0], band[:, 1])
+        shape = geometry.fit_geometry(pinned, rect, project=False)
+        _show_lines(self.ghost_boundary, shape.boundary)
+        _show_lines(self.ghost_band, shape.band_positive + shape.band_negative)
 
     def _legend_lists_ghost(self, show: bool):
         """The pinned fit's dashed ghost has a legend entry while there is one."""
@@ -196,69 +203,37 @@ class SceneItems:
             self._draw_field(self.result, rect)
             self._place_arrow()
 
-    def _level_sets(self, result, rect):
-        """(boundary segments, band segments) of ``result`` over ``rect``."""
-        if result.w is not None:
-            ends = [geometry.clip_line(result.w, -result.b + level, rect) for level in (0, 1, -1)]
-            empty = np.zeros((0, 2))
-            zero = ends[0] if ends[0] is not None else empty
-            band = np.concatenate([e for e in ends[1:] if e is not None] or [empty])
-            return zero, band
-        xs, ys, values = self._grid_values(result, rect, KERNEL_GRID)
-        zero = geometry.contour_segments(values, xs, ys, 0.0)
-        band = np.concatenate([geometry.contour_segments(values, xs, ys, level)
-                               for level in (1.0, -1.0)])
-        return zero, band
-
-    def _grid_values(self, result, rect, size):
-        xs, ys, lattice = geometry.grid(rect, size)
-        return xs, ys, result.decision_function(lattice).reshape(len(ys), len(xs))
-
     def _draw_field(self, result, rect):
         x0, x1, y0, y1 = rect
         size = LINEAR_GRID if result.w is not None else KERNEL_GRID
-        xs, ys, values = self._grid_values(result, rect, size)
+        xs, ys, values = geometry.lattice_values(result.decision_function, rect, size)
         # ImageItem reads image[x, y]; each texel covers one lattice cell
         self.shade.setImage(values.T, autoLevels=False, levels=(-SHADE_LIMIT, SHADE_LIMIT))
         dx, dy = (x1 - x0) / (size - 1), (y1 - y0) / (size - 1)
         self.shade.setRect(QRectF(x0 - dx / 2, y0 - dy / 2, x1 - x0 + dx, y1 - y0 + dy))
-        if result.w is not None:
-            zero, band = self._level_sets(result, rect)
-        else:
-            zero = geometry.contour_segments(values, xs, ys, 0.0)
-            band = np.concatenate([geometry.contour_segments(values, xs, ys, level)
-                                   for level in (1.0, -1.0)])
-        self.boundary.setData(zero[:, 0], zero[:, 1])
-        self.band.setData(band[:, 0], band[:, 1])
+        # the live picture keeps the lattice's contours (exact for linear fits);
+        # `slackline render -o figure.json` projects them onto the level sets
+        shape = geometry.fit_geometry(result, rect, grid_values=(xs, ys, values),
+                                      project=False)
+        _show_lines(self.boundary, shape.boundary)
+        _show_lines(self.band, shape.band_positive + shape.band_negative)
+        return shape
 
-    def _draw_slack(self, result, rect):
-        with_slack = np.flatnonzero(result.slack > 1e-9)
-        if not len(with_slack):
-            self.slack.setData([], [])
-            return
-        X, y, slack = result.X[with_slack], result.y[with_slack], result.slack[with_slack]
-        if result.w is not None:
-            targets = geometry.linear_slack_targets(X, y, slack, result.w)
-        else:
-            reach = 0.5 * max(rect[1] - rect[0], rect[3] - rect[2])
-            targets = geometry.gradient_slack_targets(result, X, y, slack, reach)
-        pairs = geometry.slack_segments(X, targets)
+    def _draw_slack(self, shape):
+        pairs = geometry.slack_segments(shape.slack_from, shape.slack_to)
         pairs = pairs[~np.isnan(pairs[:, 0])]
         self.slack.setData(pairs[:, 0], pairs[:, 1])
 
-    def _draw_weight(self, result, X):
-        if result.w is None or not np.any(result.w):
+    def _draw_weight(self, result):
+        ends = geometry.weight_arrow(result)
+        self._arrow_tip = ends
+        if ends is None:
             self.weight.setData([], [])
             self.arrow.hide()
-            self._arrow_tip = None
             self.scale_note.update(None, None)
             return
-        anchor = X.mean(axis=0) if len(X) else np.zeros(2)
-        foot = geometry.foot_on_boundary(result.w, result.b, anchor)
-        # the arrow runs from f = 0 to f = +1: length 1/|w|, half the margin width
-        tip = foot + result.w / np.dot(result.w, result.w)
+        foot, tip = ends
         self.weight.setData([foot[0], tip[0]], [foot[1], tip[1]])
-        self._arrow_tip = (foot, tip)
         self._place_arrow()
 
     def _place_arrow(self):

@@ -2,12 +2,25 @@
 
 Widgets read it and send it commands (app.document.edits); they never talk to each
 other.  Every change of points or settings asks the background worker for a
-new fit; the answer comes back through ``result_changed``.
+new fit; the answer comes back through ``changed``.
+
+Change notices: one signal, ``changed``, carries the frozenset of aspects that
+changed (POINTS, CONFIG, RESULT, ...).  Inside ``with document.batch():`` the
+notices are collected and emitted once at the end, so a burst of edits (a
+load, an import) reaches the views as one notice and one solve request.
+
+Two layers of writing:
+- commands (undoable, what widgets call): set_config, set_C, add_point,
+  move_points, delete_points, relabel, replace_points;
+- edits (not undoable, what the undo commands in app.document.edits call):
+  set_points, insert_points, remove_points, place_points, set_classes,
+  apply_config, set_metadata.
 """
 
 from __future__ import annotations
 
 import dataclasses
+from contextlib import contextmanager
 
 import numpy as np
 from PySide6.QtCore import QObject, Signal
@@ -20,17 +33,24 @@ from app.document.worker import SolveController
 
 DEFAULT_MAPPING = {"+1": 1, "-1": -1}
 
+# the aspects a change notice names
+POINTS = "points"            # coordinates, labels or their number
+METADATA = "metadata"        # feature and label names, units, mapping, source, note
+CONFIG = "config"            # fit settings
+RESULT = "result"            # a new result, or its staleness changed
+ERROR = "error"              # the latest solve failed (last_error says why); comes with RESULT
+SELECTION = "selection"
+PINNED = "pinned"
+PATH = "path"                # the experiment file the document belongs to
+DIRTY = "dirty"              # unsaved edits appeared or went away (is_dirty)
+EVERYTHING = frozenset({POINTS, METADATA, CONFIG, RESULT, SELECTION, PINNED, PATH, DIRTY})
+METADATA_FIELDS = ("feature_names", "label_name", "label_mapping", "source", "sha256",
+                   "units", "note", "path")
+
 
 class Document(QObject):
-    points_changed = Signal()
-    config_changed = Signal()
-    result_changed = Signal()        # a new result, or its staleness changed
-    solve_failed = Signal(str)
-    busy_changed = Signal(bool)
-    selection_changed = Signal()
-    dirty_changed = Signal(bool)
-    pinned_changed = Signal()
-    path_changed = Signal()
+    changed = Signal(object)         # frozenset of the aspects above
+    busy_changed = Signal(bool)      # the solver started or stopped working (not a change)
 
     def __init__(self, parent=None, solve_in_background: bool = True):
         super().__init__(parent)
@@ -53,13 +73,42 @@ class Document(QObject):
         self.last_error = None
         self.pinned = None
         self._selection: set = set()
+        self._batch_depth = 0
+        self._pending: set = set()
+        self._solve_pending = False
         self._solver = SolveController(self, background=solve_in_background)
         self._solver.solved.connect(self._on_solved)
         self._solver.failed.connect(self._on_failed)
         self._solver.busy_changed.connect(self.busy_changed)
 
     def _clean_changed(self, clean: bool):
-        self.dirty_changed.emit(not clean)
+        self._notify(DIRTY)
+
+    # -- change notices ----------------------------------------------------
+    @contextmanager
+    def batch(self):
+        """Collect the change notices (and solve requests) of the block into one."""
+        self._batch_depth += 1
+        try:
+            yield self
+        finally:
+            self._batch_depth -= 1
+            if not self._batch_depth:
+                self._flush()
+
+    def _notify(self, *aspects):
+        self._pending.update(aspects)
+        if not self._batch_depth:
+            self._flush()
+
+    def _flush(self):
+        if self._solve_pending:
+            self._solve_pending = False
+            self.request_solve()
+        if self._pending:
+            aspects = frozenset(self._pending)
+            self._pending.clear()
+            self.changed.emit(aspects)
 
     # -- read access -----------------------------------------------------
     @property
@@ -117,32 +166,21 @@ class Document(QObject):
 
     # -- whole-document changes (not undoable: they start a new history) --
     def load(self, dataset: Dataset, config: FitConfig | None = None, path=None, note=None):
-        """Replace everything by ``dataset`` (and ``config``); clears the history."""
-        self._assign_points(dataset.X, dataset.y, list(dataset.labels))
-        self.feature_names = tuple(dataset.feature_names)
-        self.label_name = dataset.label_name
-        self.label_mapping = dict(dataset.label_mapping)
-        self.source = getattr(dataset, "source", None)
-        self.sha256 = getattr(dataset, "sha256", None)
-        self.units = tuple(getattr(dataset, "units", None) or ("", ""))
-        self.note = note
-        self.path = path
-        if config is not None:
-            self._config = config
-        self.result = None
-        self.result_is_stale = False
-        self.pinned = None
-        self._selection = set()
-        self.undo_stack.clear()
-        self.undo_stack.setClean()
-        self.points_changed.emit()
-        self.config_changed.emit()
-        self.selection_changed.emit()
-        self.pinned_changed.emit()
-        self.result_changed.emit()
-        self.path_changed.emit()
-        self.dirty_changed.emit(False)
-        self.request_solve()
+        """Replace everything by ``dataset`` (and ``config``); clears the history.
+
+        One change notice (EVERYTHING) and one solve request."""
+        with self.batch():
+            self.set_points(dataset.X, dataset.y, list(dataset.labels), selection=set())
+            self.set_metadata(**dataset_metadata(dataset), note=note, path=path)
+            if config is not None:
+                self.apply_config(config)
+            self.result = None
+            self.result_is_stale = False
+            self.last_error = None
+            self.pinned = None
+            self.undo_stack.clear()
+            self.undo_stack.setClean()
+            self._notify(*EVERYTHING)
 
     def new(self):
         empty = Dataset(X=np.zeros((0, 2)), y=np.zeros(0, dtype=int), labels=(),
@@ -151,88 +189,139 @@ class Document(QObject):
         self.load(empty, FitConfig())
 
     def mark_saved(self, path):
-        self.path = path
-        self.undo_stack.setClean()
-        self.path_changed.emit()
+        with self.batch():
+            self.set_metadata(path=path)
+            self.undo_stack.setClean()
 
     # -- undoable changes --------------------------------------------------
+    def undo(self):
+        with self.batch():
+            self.undo_stack.undo()
+
+    def redo(self):
+        with self.batch():
+            self.undo_stack.redo()
+
+    def _push(self, command):
+        with self.batch():      # the edit and the clean-state change: one notice
+            self.undo_stack.push(command)
+
     def set_config(self, config: FitConfig, merge_key=None):
         from app.document.edits import SetConfigCommand
         if config != self._config:
-            self.undo_stack.push(SetConfigCommand(self, config, merge_key))
+            self._push(SetConfigCommand(self, config, merge_key))
 
     def set_C(self, value: float, merge_key=None):
         self.set_config(self._config.with_changes(C=float(value), hard_margin=False), merge_key)
 
     def add_point(self, x: float, y: float, sign: int):
         from app.document.edits import AddPointsCommand
-        self.undo_stack.push(AddPointsCommand(self, [[x, y]], [sign]))
+        self._push(AddPointsCommand(self, [[x, y]], [sign]))
 
     def move_points(self, indices, positions, drag_id=None):
         from app.document.edits import MovePointsCommand
-        self.undo_stack.push(MovePointsCommand(self, indices, positions, drag_id))
+        self._push(MovePointsCommand(self, indices, positions, drag_id))
 
     def delete_points(self, indices):
         from app.document.edits import DeletePointsCommand
         indices = sorted(set(int(i) for i in indices))
         if indices:
-            self.undo_stack.push(DeletePointsCommand(self, indices))
+            self._push(DeletePointsCommand(self, indices))
 
     def relabel(self, indices, sign: int | None):
         """Set the class of ``indices`` to ``sign``, or swap each when ``sign`` is None."""
         from app.document.edits import RelabelCommand
         indices = sorted(set(int(i) for i in indices))
         if indices:
-            self.undo_stack.push(RelabelCommand(self, indices, sign))
+            self._push(RelabelCommand(self, indices, sign))
 
     def replace_points(self, dataset: Dataset, text="import data"):
         from app.document.edits import ReplacePointsCommand
-        self.undo_stack.push(ReplacePointsCommand(self, dataset, text))
+        self._push(ReplacePointsCommand(self, dataset, dataset_metadata(dataset), text))
 
     # -- selection and pin (view state, not undoable) ----------------------
     def set_selection(self, indices):
         chosen = {int(i) for i in indices if 0 <= int(i) < len(self._X)}
         if chosen != self._selection:
             self._selection = chosen
-            self.selection_changed.emit()
+            self._notify(SELECTION)
 
     def pin_current(self):
         if self.result is not None:
             self.pinned = self.result
-            self.pinned_changed.emit()
+            self._notify(PINNED)
 
     def clear_pin(self):
         if self.pinned is not None:
             self.pinned = None
-            self.pinned_changed.emit()
+            self._notify(PINNED)
 
-    # -- used by the undo commands only --------------------------------------
-    def _assign_points(self, X, y, labels):
+    # -- edits: what the undo commands call (not undoable themselves) ----------
+    def set_points(self, X, y, labels, selection=None):
+        """All points at once; ``selection`` (default: the old one, trimmed) is selected."""
         self._X = np.asarray(X, dtype=float).reshape(-1, 2).copy()
         self._y = np.asarray(y, dtype=int).reshape(-1).copy()
         self._labels = list(labels)
         self._X.setflags(write=False)
         self._y.setflags(write=False)
+        chosen = self._selection if selection is None else selection
+        self._selection = {int(i) for i in chosen if 0 <= int(i) < len(self._X)}
+        self._notify(POINTS, SELECTION)
+        self._solve_later()
 
-    def _apply_points(self, X, y, labels, selection=None):
-        self._assign_points(X, y, labels)
-        if selection is not None:
-            self._selection = {i for i in selection if i < len(self._X)}
-        else:
-            self._selection = {i for i in self._selection if i < len(self._X)}
-        self.points_changed.emit()
-        self.selection_changed.emit()
-        self.request_solve()
+    def insert_points(self, points, signs, labels):
+        """Append points of class ``signs``; the new points become the selection."""
+        start = len(self._X)
+        self.set_points(np.vstack([self._X, np.asarray(points, dtype=float).reshape(-1, 2)]),
+                        np.concatenate([self._y, np.asarray(signs, dtype=int)]),
+                        self._labels + list(labels),
+                        selection=set(range(start, start + len(signs))))
 
-    def _apply_config(self, config: FitConfig):
+    def remove_points(self, indices):
+        keep = np.setdiff1d(np.arange(len(self._X)), np.asarray(indices, dtype=int))
+        self.set_points(self._X[keep], self._y[keep], [self._labels[i] for i in keep],
+                        selection=set())
+
+    def place_points(self, indices, positions):
+        """Move points ``indices`` to ``positions`` (n x 2)."""
+        X = self._X.copy()
+        X[np.asarray(indices, dtype=int)] = np.asarray(positions, dtype=float).reshape(-1, 2)
+        self.set_points(X, self._y, self._labels)
+
+    def set_classes(self, indices, signs, labels):
+        """Give points ``indices`` the classes ``signs`` written as ``labels``."""
+        y, all_labels = self._y.copy(), list(self._labels)
+        for i, sign, label in zip(np.asarray(indices, dtype=int), signs, labels):
+            y[i], all_labels[i] = int(sign), label
+        self.set_points(self._X, y, all_labels)
+
+    def apply_config(self, config: FitConfig):
         self._config = config
-        self.config_changed.emit()
-        self.request_solve()
+        self._notify(CONFIG)
+        self._solve_later()
 
-    def _apply_mapping(self, mapping, feature_names, label_name):
-        self.label_mapping = dict(mapping)
-        self.feature_names = tuple(feature_names)
-        self.label_name = label_name
+    def metadata(self) -> dict:
+        """The names, units, mapping, source, note and path, as set_metadata takes them."""
+        return {name: getattr(self, name) for name in METADATA_FIELDS}
+
+    def set_metadata(self, **fields):
+        """Set any of METADATA_FIELDS; names them METADATA (and PATH for ``path``)."""
+        unknown = set(fields) - set(METADATA_FIELDS)
+        if unknown:
+            raise TypeError(f"not document metadata: {sorted(unknown)}")
+        for name, value in fields.items():
+            if name in ("feature_names", "units"):
+                value = tuple(value or ("", ""))
+            elif name == "label_mapping":
+                value = dict(value)
+            setattr(self, name, value)
+        self._notify(*(PATH if name == "path" else METADATA for name in fields))
+
+    def _solve_later(self):
+        if self._batch_depth:
+            self._solve_pending = True
+        else:
+            self.request_solve()
 
     # -- solving -------------------------------------------------------------
     def request_solve(self):
@@ -246,7 +335,7 @@ class Document(QObject):
         self.result = result
         self.result_is_stale = False
         self.last_error = None
-        self.result_changed.emit()
+        self._notify(RESULT)
 
     def _on_failed(self, failure):
         message, best = failure
@@ -254,8 +343,15 @@ class Document(QObject):
         if best is not None and self.result is None:
             self.result = best
         self.result_is_stale = self.result is not None
-        self.solve_failed.emit(message)
-        self.result_changed.emit()
+        self._notify(RESULT, ERROR)
 
     def shutdown(self):
         self._solver.shutdown()
+
+
+def dataset_metadata(dataset) -> dict:
+    """The metadata fields a Dataset carries (path and note belong to the experiment)."""
+    return dict(feature_names=tuple(dataset.feature_names), label_name=dataset.label_name,
+                label_mapping=dict(dataset.label_mapping),
+                source=getattr(dataset, "source", None), sha256=getattr(dataset, "sha256", None),
+                units=tuple(getattr(dataset, "units", None) or ("", "")))

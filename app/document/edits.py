@@ -1,7 +1,8 @@
 """Undoable edits of a Document (QUndoStack commands).
 
-Each command stores what it needs to go both ways; the Document applies the
-new state and asks for a fresh fit.  Consecutive steps of one gesture (a
+Each command stores what it needs to go both ways and applies it through the
+Document's public edit API (set_points, insert_points, place_points, ...),
+which notifies the views and asks for a fresh fit.  Consecutive steps of one gesture (a
 dragged point, a dragged C slider) merge into one undo step.
 """
 
@@ -24,16 +25,11 @@ class AddPointsCommand(QUndoCommand):
         self._labels = [document.label_for(int(s)) for s in self._signs]
 
     def redo(self):
-        doc = self._doc
-        start = len(doc.X)
-        doc._apply_points(np.vstack([doc.X, self._points]), np.concatenate([doc.y, self._signs]),
-                          doc.labels + self._labels,
-                          selection=set(range(start, start + len(self._signs))))
+        self._doc.insert_points(self._points, self._signs, self._labels)
 
     def undo(self):
-        doc = self._doc
-        keep = len(doc.X) - len(self._signs)
-        doc._apply_points(doc.X[:keep], doc.y[:keep], doc.labels[:keep], selection=set())
+        count = len(self._doc.X)
+        self._doc.remove_points(range(count - len(self._signs), count))
 
 
 class DeletePointsCommand(QUndoCommand):
@@ -45,13 +41,11 @@ class DeletePointsCommand(QUndoCommand):
         self._before = (document.X.copy(), document.y.copy(), list(document.labels))
 
     def redo(self):
-        X, y, labels = self._before
-        keep = np.setdiff1d(np.arange(len(X)), self._indices)
-        self._doc._apply_points(X[keep], y[keep], [labels[i] for i in keep], selection=set())
+        self._doc.remove_points(self._indices)
 
     def undo(self):
         X, y, labels = self._before
-        self._doc._apply_points(X, y, labels, selection=set(self._indices.tolist()))
+        self._doc.set_points(X, y, labels, selection=set(self._indices.tolist()))
 
 
 class MovePointsCommand(QUndoCommand):
@@ -76,17 +70,11 @@ class MovePointsCommand(QUndoCommand):
         self._new = other._new
         return True
 
-    def _place(self, positions):
-        doc = self._doc
-        X = doc.X.copy()
-        X[self._indices] = positions
-        doc._apply_points(X, doc.y, doc.labels)
-
     def redo(self):
-        self._place(self._new)
+        self._doc.place_points(self._indices, self._new)
 
     def undo(self):
-        self._place(self._old)
+        self._doc.place_points(self._indices, self._old)
 
 
 class RelabelCommand(QUndoCommand):
@@ -103,42 +91,33 @@ class RelabelCommand(QUndoCommand):
         self._new_y = new_y
         self._new_labels = [document.label_for(int(s)) for s in new_y]
 
-    def _set(self, signs, labels):
-        doc = self._doc
-        y = doc.y.copy()
-        y[self._indices] = signs
-        all_labels = list(doc.labels)
-        for i, label in zip(self._indices, labels):
-            all_labels[i] = label
-        doc._apply_points(doc.X, y, all_labels)
-
     def redo(self):
-        self._set(self._new_y, self._new_labels)
+        self._doc.set_classes(self._indices, self._new_y, self._new_labels)
 
     def undo(self):
-        self._set(self._old_y, self._old_labels)
+        self._doc.set_classes(self._indices, self._old_y, self._old_labels)
 
 
 class ReplacePointsCommand(QUndoCommand):
-    """Swap in a whole new set of points (import), keeping the fit settings."""
+    """Swap in a whole new set of points (import), keeping the fit settings.
 
-    def __init__(self, document, dataset, text="import data"):
+    The points bring their own names, units, mapping and source; the note and
+    the experiment path belonged to the old points, so the imported ones
+    start without them (a save asks for a new name)."""
+
+    def __init__(self, document, dataset, metadata, text="import data"):
         super().__init__(text)
         self._doc = document
         self._old = (document.X.copy(), document.y.copy(), list(document.labels),
-                     dict(document.label_mapping), tuple(document.feature_names),
-                     document.label_name, document.source, document.sha256)
+                     document.metadata())
         self._new = (np.asarray(dataset.X, dtype=float), np.asarray(dataset.y, dtype=int),
-                     list(dataset.labels), dict(dataset.label_mapping),
-                     tuple(dataset.feature_names), dataset.label_name,
-                     getattr(dataset, "source", None), getattr(dataset, "sha256", None))
+                     list(dataset.labels), dict(metadata, note=None, path=None))
 
     def _put(self, state):
-        X, y, labels, mapping, names, label_name, source, sha256 = state
-        doc = self._doc
-        doc._apply_mapping(mapping, names, label_name)
-        doc.source, doc.sha256 = source, sha256
-        doc._apply_points(X, y, labels, selection=set())
+        X, y, labels, metadata = state
+        with self._doc.batch():
+            self._doc.set_metadata(**metadata)
+            self._doc.set_points(X, y, labels, selection=set())
 
     def redo(self):
         self._put(self._new)
@@ -167,7 +146,7 @@ class SetConfigCommand(QUndoCommand):
         return True
 
     def redo(self):
-        self._doc._apply_config(self._new)
+        self._doc.apply_config(self._new)
 
     def undo(self):
-        self._doc._apply_config(self._old)
+        self._doc.apply_config(self._old)

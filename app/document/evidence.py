@@ -18,6 +18,7 @@ from solver.files import HeldOutPoints, heldout_from_section, heldout_section, r
 from solver.study import confusion, influence_of_support_vectors, score
 
 from app.document.background import BackgroundTask
+from app.document.document import RESULT
 
 
 class Evidence(QObject):
@@ -38,7 +39,7 @@ class Evidence(QObject):
         self._influence_of = None   # the result the influence belongs to
         self._task = None
         self._tasks = []            # every task still running (waited for at shutdown)
-        document.result_changed.connect(self.refresh)
+        document.changed.connect(lambda changes: self.refresh() if RESULT in changes else None)
 
     # -- reading files (solver.files does the reading; errors propagate) ------------
     def score_file(self, path, drop_incomplete=False):
@@ -159,15 +160,15 @@ class HoldOutCommand(QUndoCommand):
                                   labels=heldout.labels + moved.labels,
                                   signs=np.r_[heldout.signs, moved.signs])
         self.evidence.heldout = moved
-        self.evidence.document._apply_points(X[self.keep], y[self.keep],
-                                             [l for l, k in zip(labels, self.keep) if k],
-                                             selection=set())
+        self.evidence.document.set_points(X[self.keep], y[self.keep],
+                                          [lab for lab, k in zip(labels, self.keep) if k],
+                                          selection=set())
         self.evidence.refresh()
 
     def undo(self):
         X, y, labels, heldout = self.before
         self.evidence.heldout = heldout
-        self.evidence.document._apply_points(X, y, labels, selection=set(self.indices))
+        self.evidence.document.set_points(X, y, labels, selection=set(self.indices))
         self.evidence.refresh()
 
 

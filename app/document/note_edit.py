@@ -11,11 +11,17 @@ from __future__ import annotations
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtGui import QUndoCommand
 
+from app.document.document import METADATA, PATH
+
 _NOTE_ID = 1003
 
 
 class NoteChannel(QObject):
     changed = Signal()
+
+    def document_changed(self, changes):
+        if changes & {METADATA, PATH}:       # an edit, undo or redo; a file opened or saved
+            self.changed.emit()
 
 
 def note_channel(document) -> NoteChannel:
@@ -23,7 +29,7 @@ def note_channel(document) -> NoteChannel:
     channel = document.findChild(NoteChannel)
     if channel is None:
         channel = NoteChannel(document)
-        document.path_changed.connect(channel.changed)    # a file was opened or saved
+        document.changed.connect(channel.document_changed)
     return channel
 
 
@@ -47,8 +53,8 @@ class SetNoteCommand(QUndoCommand):
         return True
 
     def _put(self, text):
-        self._doc.note = text
-        note_channel(self._doc).changed.emit()
+        note_channel(self._doc)                      # listening before the first change
+        self._doc.set_metadata(note=text)
 
     def redo(self):
         self._put(self._new)
@@ -61,4 +67,5 @@ def set_note(document, text: str, stretch=None):
     """Push the edit when the note really changes."""
     text = text if text else None
     if text != document.note:
-        document.undo_stack.push(SetNoteCommand(document, text, stretch))
+        with document.batch():
+            document.undo_stack.push(SetNoteCommand(document, text, stretch))

@@ -12,6 +12,8 @@ from PySide6.QtCore import QObject
 
 from solver.study.crossval import points_fingerprint
 
+from app.document.document import PATH, POINTS
+
 
 class ProvenanceTracker(QObject):
     def __init__(self, document):
@@ -19,9 +21,14 @@ class ProvenanceTracker(QObject):
         self.document = document
         self._source = None
         self._baseline = None
-        document.points_changed.connect(self._points_changed)
-        document.path_changed.connect(self._path_changed)
+        document.changed.connect(self._document_changed)
         self._remember()
+
+    def _document_changed(self, changes):
+        if POINTS in changes:
+            self._points_changed()
+        if PATH in changes:
+            self._path_changed()
 
     def _remember(self):
         doc = self.document

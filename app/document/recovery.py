@@ -14,6 +14,8 @@ from PySide6.QtCore import QObject, QSettings, QTimer
 
 from solver import SlacklineError
 
+from app.document.document import CONFIG, DIRTY, METADATA, POINTS
+
 DELAY_MS = 3000
 FILE_NAME = "recovery.experiment.json"
 
@@ -31,18 +33,14 @@ class RecoveryWriter(QObject):
         self.path = recovery_path()
         self.timer = QTimer(self, singleShot=True, interval=delay_ms)
         self.timer.timeout.connect(self.write_now)
-        document.points_changed.connect(self._edited)
-        document.config_changed.connect(self._edited)
-        document.dirty_changed.connect(self._dirty_changed)
+        document.changed.connect(self._document_changed)
 
-    def _edited(self):
-        if self.document.is_dirty:
-            self.timer.start()
-
-    def _dirty_changed(self, dirty: bool):
-        if not dirty:
+    def _document_changed(self, changes):
+        if DIRTY in changes and not self.document.is_dirty:
             self.timer.stop()
             self.discard()
+        elif changes & {POINTS, CONFIG, METADATA} and self.document.is_dirty:
+            self.timer.start()
 
     def write_now(self):
         from solver.files import save_experiment

@@ -6,8 +6,9 @@ come from solver.study.compare and the sentence from solver.study.narrative.
 
 from __future__ import annotations
 
-from PySide6.QtWidgets import (QFileDialog, QGridLayout, QHBoxLayout, QLabel, QMessageBox,
-                               QPushButton, QTableWidget, QTableWidgetItem, QWidget)
+from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QHeaderView, QLabel, QMessageBox,
+                               QPushButton, QTableWidget, QTableWidgetItem, QVBoxLayout,
+                               QWidget)
 
 from solver.study import compare
 from solver.study import LEAVE_ONE_OUT, cross_validate, points_fingerprint
@@ -16,13 +17,13 @@ from solver.study import heldout_sentence, summary
 from solver import STATUS_TEXT
 
 from app.document.background import BackgroundTask
+from app.document.document import PINNED, RESULT
 from app.document.evidence import evidence_of
 from app.document.sweep_store import sweep_store
 from app.document.provenance import provenance
-from app.panels.study_layout import side_column
+from app.panels.points_table import SHORT_STATUS
 
 QUICK_FOLDS = 5
-SIDE_WIDTH = 340           # px: the buttons and the plain-words comparison
 
 
 class ComparePanel(QWidget):
@@ -34,9 +35,8 @@ class ComparePanel(QWidget):
         self.task = None
         self._cv_cache = {}           # (points fingerprint, config) -> CVEstimate
         self._build()
-        for signal in (document.result_changed, document.pinned_changed,
-                       self.store.sweep_changed):
-            signal.connect(self.refresh)
+        document.changed.connect(self._document_changed)
+        self.store.sweep_changed.connect(self.refresh)
         self.refresh()
 
     def _build(self):
@@ -48,10 +48,10 @@ class ComparePanel(QWidget):
         self.clear_button.clicked.connect(self.document.clear_pin)
         self.cv_button.clicked.connect(self.estimate_cv)
         self.report_button.clicked.connect(self._ask_and_export)
-        buttons = QGridLayout()
-        for place, button in enumerate((self.pin_button, self.clear_button, self.cv_button,
-                                        self.report_button)):
-            buttons.addWidget(button, place // 2, place % 2)
+        buttons = QHBoxLayout()
+        for button in (self.pin_button, self.clear_button, self.cv_button, self.report_button):
+            buttons.addWidget(button)
+        buttons.addStretch(1)
         self.summary = QLabel("")
         self.summary.setWordWrap(True)
         self.table = QTableWidget(0, 4)
@@ -59,14 +59,21 @@ class ComparePanel(QWidget):
         self.support = QLabel("")
         self.support.setWordWrap(True)
         self.changes = QTableWidget(0, 6)
-        self.changes.setHorizontalHeaderLabels(["point", "class", "was", "now",
-                                                "slack before", "slack after"])
-        # the words on the left, the two tables side by side: the study area is wide
-        layout = QHBoxLayout(self)
+        self.changes.setHorizontalHeaderLabels(["#", "class", "was", "now", "\u03be was",
+                                                "\u03be now"])
+        for table in (self.table, self.changes):
+            _compact(table)
+        # buttons and words across the top, the two tables side by side below: the
+        # study area is wide and short, and the tables need the width
+        tables = QHBoxLayout()
+        tables.addWidget(self.table)
+        tables.addWidget(self.changes, stretch=1)
+        layout = QVBoxLayout(self)
         layout.setContentsMargins(4, 4, 4, 4)
-        layout.addWidget(side_column((buttons, self.summary, self.support), SIDE_WIDTH))
-        layout.addWidget(self.table, stretch=2)
-        layout.addWidget(self.changes, stretch=3)
+        layout.addLayout(buttons)
+        layout.addWidget(self.summary)
+        layout.addWidget(self.support)
+        layout.addLayout(tables, stretch=1)
 
     # -- reading the document -------------------------------------------------
     def cv_for(self, result):
@@ -79,6 +86,10 @@ class ComparePanel(QWidget):
             if estimate is not None:
                 return estimate
         return self._cv_cache.get(_key(result))
+
+    def _document_changed(self, changes):
+        if changes & {RESULT, PINNED}:
+            self.refresh()
 
     def refresh(self):
         document = self.document
@@ -114,6 +125,12 @@ class ComparePanel(QWidget):
             for c, text in enumerate((q.name, f"{q.before:.4g}", f"{q.after:.4g}",
                                       f"{q.change:+.4g}")):
                 self.table.setItem(r, c, QTableWidgetItem(text))
+        # the figures table is as wide as its columns; the changes table takes the rest
+        header = self.table.horizontalHeader()
+        widths = [max(self.table.sizeHintForColumn(c), header.sectionSizeHint(c))
+                  for c in range(self.table.columnCount())]
+        scroll = self.table.verticalScrollBar().sizeHint().width()
+        self.table.setMinimumWidth(sum(widths) + 2 * self.table.frameWidth() + scroll + 12)
 
     def _fill_changes(self):
         comparison = self.comparison
@@ -129,10 +146,14 @@ class ComparePanel(QWidget):
             label = self.document.label_for(change.sign) if hasattr(
                 self.document, "label_for") else f"{change.sign:+d}"
             for c, text in enumerate((str(change.after_index), str(label),
-                                      STATUS_TEXT[change.status_before],
-                                      STATUS_TEXT[change.status_after],
+                                      SHORT_STATUS[change.status_before],
+                                      SHORT_STATUS[change.status_after],
                                       f"{change.slack_before:.3g}", f"{change.slack_after:.3g}")):
-                self.changes.setItem(r, c, QTableWidgetItem(text))
+                item = QTableWidgetItem(text)
+                if c in (2, 3):
+                    status = (change.status_before, change.status_after)[c - 2]
+                    item.setToolTip(STATUS_TEXT[status])
+                self.changes.setItem(r, c, item)
 
     # -- the quick CV estimate --------------------------------------------------
     def estimate_cv(self):
@@ -189,6 +210,17 @@ class ComparePanel(QWidget):
                              self.cv_for(pinned), self.cv_for(current), note=document.note,
                              edited=provenance(document).edited_since_import(),
                              heldout=evidence_of(document).counts)
+
+
+def _compact(table):
+    """Rows of text height, no row numbers, columns as wide as their contents."""
+    table.verticalHeader().hide()
+    table.verticalHeader().setDefaultSectionSize(20)
+    table.setWordWrap(False)
+    header = table.horizontalHeader()
+    header.setSectionResizeMode(QHeaderView.ResizeToContents)
+    header.setStretchLastSection(True)
+    table.setEditTriggers(QTableWidget.NoEditTriggers)
 
 
 def _key(result):

@@ -6,17 +6,19 @@ import itertools
 import math
 
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QDoubleValidator
 from PySide6.QtWidgets import (QButtonGroup, QCheckBox, QComboBox, QDoubleSpinBox, QFormLayout,
-                               QHBoxLayout, QLineEdit, QRadioButton, QSlider, QSpinBox,
+                               QHBoxLayout, QLabel, QLineEdit, QRadioButton, QSlider, QSpinBox,
                                QVBoxLayout, QWidget, QGroupBox)
 
 from solver import kernels, scaling
 from solver import InputError
 from solver import PARAMETERS
 
+from app.document.document import CONFIG, METADATA, POINTS
+
 LOG_C_MIN, LOG_C_MAX = -3.0, 4.0     # the slider spans C = 1e-3 .. 1e4
 SLIDER_STEPS = 700                   # 100 steps per decade
+C_FIELD_TIP = "the exact value of C; press Enter to apply"
 _gestures = itertools.count(1)
 
 
@@ -41,8 +43,9 @@ def _parameter_box(name: str):
     else:
         box = QDoubleSpinBox()
         box.setDecimals(spec.decimals)
-        low = spec.low + (10.0 ** -spec.decimals if spec.low_open else 0.0)
-        box.setRange(low, min(spec.high, SPIN_LIMIT))
+        # the range includes an open lower end (gamma = 0) so that it can be typed
+        # and refused with its reason in place, instead of silently reverted
+        box.setRange(max(spec.low, -SPIN_LIMIT), min(spec.high, SPIN_LIMIT))
     box.setSingleStep(spec.step)
     box.setKeyboardTracking(False)
     box.setToolTip(spec.help)
@@ -62,10 +65,15 @@ class Controls(QWidget):
         self.slider = QSlider(Qt.Horizontal)
         self.slider.setRange(0, SLIDER_STEPS)
         self.slider.setToolTip("C on a logarithmic scale, 0.001 to 10000")
+        # no validator: a refused value stays in the field and the hint says why
         self.C_field = QLineEdit()
-        self.C_field.setValidator(QDoubleValidator(1e-300, 1e300, 12))
         self.C_field.setMaximumWidth(90)
-        self.C_field.setToolTip("the exact value of C; press Enter to apply")
+        self.C_field.setToolTip(C_FIELD_TIP)
+        self.hint = QLabel()
+        self.hint.setObjectName("settings_hint")
+        self.hint.setWordWrap(True)
+        self.hint.setStyleSheet("color: #b00020;")
+        self.hint.hide()
         self.hard = QCheckBox("hard margin (C = \u221e)")
         row = QHBoxLayout()
         row.addWidget(self.slider, 1)
@@ -119,6 +127,7 @@ class Controls(QWidget):
 
         layout = QVBoxLayout(self)
         layout.addLayout(self.form)
+        layout.addWidget(self.hint)
         layout.addWidget(weights)
         layout.addWidget(adding)
         layout.addStretch(1)
@@ -138,8 +147,7 @@ class Controls(QWidget):
         self.scaling.currentIndexChanged.connect(
             lambda index: self._change(scaling=self.scaling.itemData(index)))
         self.new_class.idToggled.connect(self._new_class_toggled)
-        document.config_changed.connect(self.show_config)
-        document.points_changed.connect(self._show_class_names)
+        document.changed.connect(self._document_changed)
         self.show_config()
         self._show_class_names()
 
@@ -158,12 +166,19 @@ class Controls(QWidget):
         self.document.set_C(C, merge_key=self._gesture)
 
     def _C_typed(self):
+        text = self.C_field.text().strip()
         try:
-            value = float(self.C_field.text())
-        except ValueError:
-            self.show_config()
+            value = float(text)
+            self.document.config.with_changes(C=value, hard_margin=False)
+        except (ValueError, InputError):
+            # the window's own words: here C = infinity is the hard-margin box
+            self._refuse(self.C_field, f"C must be a positive number such as 0.5 or 10 "
+                                       f"(for C = \u221e tick hard margin); got {text!r}")
             return
-        self.document.set_C(value)
+        if value == self.document.config.C and not self.document.config.hard_margin:
+            self._clear_refusal()
+            return
+        self._change(C=value, hard_margin=False)
 
     def _change(self, **changes):
         if self._updating:
@@ -171,18 +186,45 @@ class Controls(QWidget):
         try:
             config = self.document.config.with_changes(**changes)
         except InputError as exc:
-            self.window().statusBar().showMessage(str(exc), 8000)
-            self.show_config()
+            field = self.C_field if "C" in changes else None
+            self._refuse(field, str(exc))
+            if field is None:
+                self.show_config(keep_hint=True)
             return
+        self._clear_refusal()
         self.document.set_config(config)
+
+    def _refuse(self, field, reason: str):
+        """Say in place why a typed value was not applied (the field keeps it)."""
+        self.hint.setText(reason)
+        self.hint.show()
+        if field is not None:
+            field.setStyleSheet("border: 1px solid #b00020;")
+            field.setToolTip(reason)
+
+    def _clear_refusal(self):
+        if self.hint.isHidden():
+            return              # nothing shown: no style change (each one re-polishes)
+        self.hint.hide()
+        self.hint.clear()
+        self.C_field.setStyleSheet("")
+        self.C_field.setToolTip(C_FIELD_TIP)
 
     def _new_class_toggled(self, sign, checked):
         if checked and self.canvas is not None:
             self.canvas.new_point_sign = sign
 
     # -- document -> widgets -------------------------------------------------------
-    def show_config(self):
+    def _document_changed(self, changes):
+        if CONFIG in changes:
+            self.show_config()
+        if changes & {POINTS, METADATA}:
+            self._show_class_names()
+
+    def show_config(self, keep_hint=False):
         config = self.document.config
+        if not keep_hint:
+            self._clear_refusal()
         self._updating = True
         try:
             if not self.slider.isSliderDown():

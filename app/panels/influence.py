@@ -11,6 +11,7 @@ from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import (QAbstractItemView, QHeaderView, QLabel, QTableWidget,
                                QTableWidgetItem, QVBoxLayout, QWidget)
 
+from app.document.document import RESULT
 from app.document.evidence import evidence_of
 
 COLUMNS = ("point", "turn [deg]", "b change", "margin change", "flips")
@@ -48,7 +49,8 @@ class InfluencePanel(QWidget):
         layout.addWidget(self.table)
         self._timer = QTimer(self, singleShot=True, interval=DELAY_MS)
         self._timer.timeout.connect(self._request)
-        document.result_changed.connect(self._timer.start)
+        document.changed.connect(lambda changes: self._timer.start() if RESULT in changes
+                                 else None)
         self.evidence.influence_changed.connect(self.refresh)
         self.refresh()
 

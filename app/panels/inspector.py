@@ -6,6 +6,7 @@ from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT
 
+from app.document.document import METADATA, POINTS, RESULT, SELECTION
 from app.panels.units import length_suffix
 
 READING = {
@@ -36,9 +37,12 @@ class Inspector(QWidget):
         self.document = document
         self.values = {}
         form = QFormLayout(self)
+        # a narrow column: long values wrap under their title instead of being cut off
+        form.setRowWrapPolicy(QFormLayout.WrapLongRows)
         for key in FIELDS:
             label = QLabel("\u2014")
             label.setObjectName(f"inspector_{key}")
+            label.setWordWrap(True)
             self.values[key] = label
             form.addRow(TITLES[key], label)
         self.reading = QLabel()
@@ -46,13 +50,15 @@ class Inspector(QWidget):
         self.reading.setObjectName("inspector_reading")
         self.reading.setStyleSheet("font-style: italic;")
         form.addRow(self.reading)
-        for signal in (document.selection_changed, document.result_changed,
-                       document.points_changed):
-            signal.connect(self.refresh)
+        document.changed.connect(self._document_changed)
         self.refresh()
 
     def text(self, key: str) -> str:
         return self.values[key].text()
+
+    def _document_changed(self, changes):
+        if changes & {SELECTION, RESULT, POINTS, METADATA}:
+            self.refresh()
 
     def refresh(self):
         doc = self.document

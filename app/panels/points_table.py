@@ -18,6 +18,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QHBoxLayout, QHeade
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, STATUSES
 
+from app.document.document import METADATA, POINTS, RESULT, SELECTION
 from app.panels.units import length_suffix
 
 REFRESH_MS = 120   # new fits reach the table at most this often: the canvas goes first
@@ -48,9 +49,14 @@ class PointsModel(QAbstractTableModel):
         self._result = None
         self._refresh = QTimer(self, singleShot=True, interval=REFRESH_MS)
         self._refresh.timeout.connect(self._result_changed)
-        document.points_changed.connect(self._reset)
-        document.result_changed.connect(self._refresh.start)
+        document.changed.connect(self._document_changed)
         self._reset()
+
+    def _document_changed(self, changes):
+        if changes & {POINTS, METADATA}:
+            self._reset()
+        elif RESULT in changes:
+            self._refresh.start()
 
     def _matching_result(self):
         doc, result = self.document, self.document.result
@@ -171,7 +177,7 @@ class PointsModel(QAbstractTableModel):
                 return ""
             if column == 9:
                 return SHORT_STATUS[value]
-            digits = 6 if column in (1, 2) else 4
+            digits = {1: 6, 2: 6, 7: 3, 8: 3}.get(column, 4)   # alpha, slack: room for e-12
             return f"{value:.{digits}g}" if isinstance(value, float) else str(value)
         if role == Qt.TextAlignmentRole and index.column() not in (3, 9):
             return int(Qt.AlignRight | Qt.AlignVCenter)
@@ -221,8 +227,14 @@ class PointsTable(QWidget):
         header = self.view.horizontalHeader()
         header.setMinimumSectionSize(36)
         header.setSectionResizeMode(QHeaderView.Stretch)      # share the width: no h-scroll
-        header.setSectionResizeMode(0, QHeaderView.ResizeToContents)
-        header.setSectionResizeMode(9, QHeaderView.ResizeToContents)
+        # the row number and the status get fixed widths from the font: measuring
+        # contents would walk every row on every new fit
+        metrics = self.view.fontMetrics()
+        widths = {0: metrics.horizontalAdvance("00000") + 18,
+                  9: max(metrics.horizontalAdvance(t) for t in SHORT_STATUS.values()) + 14}
+        for column, width in widths.items():
+            header.setSectionResizeMode(column, QHeaderView.Fixed)
+            header.resizeSection(column, width)
         header.setTextElideMode(Qt.ElideRight)
         self.view.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
         triggers = QAbstractItemView
@@ -240,7 +252,6 @@ class PointsTable(QWidget):
         self.refusal = QLabel("", objectName="points_refusal")
         self.refusal.setStyleSheet("color: #a4161a;")
         self.model.refused.connect(self.refusal.setText)
-        document.points_changed.connect(lambda: self.refusal.setText(""))
         top = QHBoxLayout()
         top.addWidget(QLabel("show"))
         top.addWidget(self.filter)
@@ -251,8 +262,14 @@ class PointsTable(QWidget):
         layout.addWidget(self.view)
         self._syncing = False
         self.view.selectionModel().selectionChanged.connect(self._table_selected)
-        document.selection_changed.connect(self._document_selected)
+        document.changed.connect(self._document_changed_for_view)
         self.model.modelReset.connect(self._document_selected)
+
+    def _document_changed_for_view(self, changes):
+        if SELECTION in changes:
+            self._document_selected()
+        if POINTS in changes:
+            self.refusal.setText("")
 
     def _fit_values_changed(self, *_):
         if self.proxy.status is not None or self.proxy.sortColumn() >= 4:

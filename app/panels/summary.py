@@ -6,6 +6,7 @@ from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN
 
+from app.document.document import METADATA, RESULT
 from app.panels.units import length_suffix, units_sentence
 
 ROWS = (   # (key, title, tooltip)
@@ -44,20 +45,23 @@ class Summary(QWidget):
         self.values = {}
         form = QFormLayout(self)
         form.setHorizontalSpacing(14)
+        form.setVerticalSpacing(3)       # twelve rows under the Fit settings at 800 px high
         form.setRowWrapPolicy(QFormLayout.WrapLongRows)
         for key, title, tip in ROWS:
             label = QLabel("\u2014")
             label.setToolTip(tip)
             label.setObjectName(f"summary_{key}")
             label.setTextInteractionFlags(label.textInteractionFlags() | _selectable())
-            label.setStyleSheet("font-family: monospace;" if key not in ("state", "units") else "")
-            label.setWordWrap(key in ("state", "units"))
+            label.setWordWrap(key in ("state", "units", "margin", "w"))
             self.values[key] = label
-            form.addRow(title, label)
+            if key == "state":
+                # the whole width, so a long reason (hard margin refused) wraps, never cut
+                form.addRow(label)
+            else:
+                form.addRow(title, label)
             if form.labelForField(label) is not None:
                 form.labelForField(label).setToolTip(tip)
-        document.result_changed.connect(self.refresh)
-        document.solve_failed.connect(lambda _message: self.refresh())
+        document.changed.connect(self._document_changed)
         self.refresh()
 
     def text(self, key: str) -> str:
@@ -67,6 +71,10 @@ class Summary(QWidget):
         error, counts = _heldout_lines(self.document)
         set_("heldout", error)
         set_("confusion", counts)
+
+    def _document_changed(self, changes):
+        if changes & {RESULT, METADATA}:
+            self.refresh()
 
     def refresh(self):
         doc, result = self.document, self.document.result
@@ -80,7 +88,7 @@ class Summary(QWidget):
         if result.w is not None:
             set_("w", f"({number(result.w[0])}, {number(result.w[1])})")
         else:
-            set_("w", f"\u2014 ({result.config.kernel} kernel: no w in the plane)")
+            set_("w", "\u2014 (kernel fit: no w in the plane)")
         set_("margin", number(result.margin_width) + unit)
         set_("units", units_sentence(result, doc.units, doc.feature_names))
         set_("b", number(result.b))

@@ -14,11 +14,12 @@ from solver import SlacklineError
 from solver.study import SweepSettings, run_sweep
 
 from app.document.background import BackgroundTask
+from app.document.document import CONFIG, POINTS
 from app.panels.study_layout import ChartArea, side_column
 from app.panels.sweep_chart import SweepChart
 from app.document.sweep_store import sweep_store
 
-SIDE_WIDTH = 290            # px: the settings, buttons and the suggestion beside the charts
+SIDE_WIDTH = 270            # px: the settings, buttons and the suggestion beside the charts
 PARALLEL_FROM_POINTS = 200   # below this, process start-up costs more than it saves
 SUGGESTION_NOTE = ("Suggestion only, from cross-validation on these points — not a "
                    "validated model. In an SVM a smaller C is the more regularised, "
@@ -35,8 +36,7 @@ class SweepPanel(QWidget):
         self.chart = SweepChart(self)
         self._build()
         self.chart.C_clicked.connect(self._on_chart_click)
-        document.points_changed.connect(self._refresh_staleness)
-        document.config_changed.connect(self._on_config_changed)
+        document.changed.connect(self._document_changed)
         self.store.sweep_changed.connect(self._show_sweep)
         self._on_config_changed()
         self._show_sweep()
@@ -168,7 +168,8 @@ class SweepPanel(QWidget):
         if self.store.sweep is None:
             self.chart.show_sweep(None)
         self._refresh_staleness()
-        self._show_suggestion()
+        if self.store.sweep is None:
+            self._show_suggestion()
 
     def _refresh_staleness(self):
         sweep = self.store.sweep
@@ -190,6 +191,11 @@ class SweepPanel(QWidget):
                                 f"Click the chart to set C.")
         for button in (self.use_best, self.use_largest, self.use_smallest):
             button.setEnabled(sweep.suggestion is not None and not stale)
+        # a suggestion from other points or settings is no suggestion for these
+        if stale:
+            self.suggestion.clear()
+        else:
+            self._show_suggestion()
 
     def _stale_reason(self) -> str:
         from solver.study import points_fingerprint
@@ -220,6 +226,12 @@ class SweepPanel(QWidget):
             f"(more regularised, simpler).<br><i>{SUGGESTION_NOTE}</i>")
 
     # -- commands to the document -----------------------------------------------
+    def _document_changed(self, changes):
+        if CONFIG in changes:
+            self._on_config_changed()
+        elif POINTS in changes:
+            self._refresh_staleness()
+
     def _on_config_changed(self):
         config = self.document.config
         self.chart.set_marker(None if config.hard_margin else config.C)

@@ -21,8 +21,6 @@ from solver.files import TABLE_FILTER, write_scored_csv
 
 from app.canvas.evidence_layer import EvidenceLayer
 from app.document.evidence import evidence_of
-from app.panels.influence import InfluencePanel
-from app.panels.scored_rows import ScoredRowsPanel
 
 
 class EvidenceActions(QObject):
@@ -31,20 +29,13 @@ class EvidenceActions(QObject):
         self.window = window
         self.evidence = evidence_of(window.document)
         self.layer = EvidenceLayer(window.canvas, self.evidence)
-        self.influence_panel = InfluencePanel(window.document)
-        self.scored_panel = ScoredRowsPanel(window.document)
+        self.influence_panel = window.influence_panel      # listed in app/window/panels.py
+        self.scored_panel = window.scored_panel
         self.scored_panel.export_button.clicked.connect(lambda: self.export_scored())
-        window.workspace.add_study("Influence", self.influence_panel,
-                                   "which points hold the boundary: each support vector left "
-                                   "out in turn, largest effect first")
-        window.workspace.add_study("Scored rows", self.scored_panel,
-                                   "new rows scored by the current fit (File \u2192 Score data)")
         self._menus()
         self.evidence.changed.connect(window.summary.refresh)
         self.evidence.influence_changed.connect(window.inspector.refresh)
-        compare_panel = window.optional_panels.get("ComparePanel")
-        if compare_panel is not None:
-            self.evidence.changed.connect(compare_panel.refresh)
+        self.evidence.changed.connect(window.compare.refresh)
 
     def _menus(self):
         window = self.window

@@ -122,7 +122,8 @@ class FileActions(QObject):
         return self.save_to(self.document.path)
 
     def save_as(self) -> bool:
-        name = Path(self.document.path).name if self.document.path else "untitled.experiment.json"
+        name = Path(self.document.path).name if self.document.path else \
+            f"{self._stem()}.experiment.json"
         path = self._ask_save("Save experiment as", EXPERIMENT_FILTER, name)
         return self.save_to(path) if path else False
 
@@ -145,7 +146,9 @@ class FileActions(QObject):
 
     # -- exports -------------------------------------------------------------------
     def _stem(self):
-        return Path(self.document.path).name.split(".")[0] if self.document.path else "untitled"
+        """The experiment's name, else the imported table's, else "untitled"."""
+        named = self.document.path or self.document.source
+        return Path(str(named)).name.split(".")[0] if named else "untitled"
 
     def export_picture(self, path=None) -> bool:
         path = path or self._ask_save("Export picture", "PNG picture (*.png);;SVG drawing (*.svg)",

@@ -12,26 +12,16 @@ from app.dialogs.about import show_about
 from app.dialogs.help_pages import READING, shortcuts_html, show_page
 from app.canvas import geometry
 from app.canvas.canvas import Canvas
-from app.panels.controls import Controls
-from app.document.document import Document
+from app.document.document import DIRTY, PATH, Document
 from app.window.evidence_actions import install_evidence
 from app.window.file_actions import FileActions
-from app.panels.inspector import Inspector
-from app.panels.points_table import PointsTable
 from app.document.provenance import provenance
 from app.document.recovery import RecoveryWriter, pending_recovery
-from app.panels.note import NoteEditor
-from app.panels.summary import Summary
+from app.window.panels import PANELS
 from app.window.status import StatusReadouts
 from app.window.tooltips import apply_tooltips
 from app.window.workspace import Workspace
 from solver import kernels
-
-# each becomes a tab of the study area when its module is present
-OPTIONAL_PANELS = (("app.panels.sweep", "SweepPanel", "C sweep",
-                    "cross-validated error and more against C; click the chart to set C"),
-                   ("app.panels.compare", "ComparePanel", "Compare",
-                    "the current fit against the pinned one, in numbers and words"))
 
 
 class MainWindow(QMainWindow):
@@ -44,21 +34,14 @@ class MainWindow(QMainWindow):
         provenance(self.document)     # remembers the points as imported, before any edit
         self.canvas = Canvas(self.document)
         self.setCentralWidget(self.canvas)
-        self.controls = Controls(self.document, self.canvas)
-        self.summary = Summary(self.document)
-        self.inspector = Inspector(self.document)
-        self.points_table = PointsTable(self.document)
-        self.note_editor = NoteEditor(self.document)
         self.workspace = Workspace(self)
         self.docks = self.workspace.docks
-        self.workspace.settings_column(self.controls)
-        self.workspace.dock("Summary", self.summary, Qt.LeftDockWidgetArea, scroll=True)
-        self.workspace.add_study("Points", self.points_table, "every point with its figures; "
-                                 "double-click a coordinate or label to edit it")
-        self.optional_panels = self.workspace.add_optional_studies(self.document,
-                                                                   OPTIONAL_PANELS)
-        self.workspace.add_study("Note", self.note_editor, "the experiment's note: saved in "
-                                 "the file and printed in the report")
+        self.panels = {}
+        for spec in PANELS:      # declared once, in app/window/panels.py
+            panel = spec.build(self.document, self.canvas)
+            self.panels[spec.name] = panel
+            setattr(self, spec.name, panel)       # window.controls, window.summary, ...
+            self.workspace.place(spec, panel)
         self.files = FileActions(self, self.document, self.canvas)
         self.recovery = RecoveryWriter(self.document, self)
         self._build_status_bar()
@@ -66,8 +49,7 @@ class MainWindow(QMainWindow):
         self.evidence_actions = install_evidence(self)   # scored rows, held-out, influence
         apply_tooltips(self)
         self.setAcceptDrops(True)
-        self.document.dirty_changed.connect(self._update_title)
-        self.document.path_changed.connect(self._update_title)
+        self.document.changed.connect(self._document_changed)
         self.resize(1280, 800)
         self.workspace.finish(self.inspector)
         self._restore_settings()
@@ -112,6 +94,11 @@ class MainWindow(QMainWindow):
         undo.setShortcut(QKeySequence.Undo)
         redo = doc.undo_stack.createRedoAction(self, "Redo")
         redo.setShortcut(QKeySequence.Redo)
+        # the stack keeps their text and state; a trigger goes through the document,
+        # so an undo and its clean-state change reach the views as one notice
+        for action, step in ((undo, doc.undo), (redo, doc.redo)):
+            action.triggered.disconnect()
+            action.triggered.connect(step)
         edit.addActions([undo, redo])
         self.undo_action, self.redo_action = undo, redo
         edit.addSeparator()
@@ -165,6 +152,10 @@ class MainWindow(QMainWindow):
         self.recent_menu.setEnabled(bool(self.files.recent()))
 
     # -- document -> window ----------------------------------------------------------
+    def _document_changed(self, changes):
+        if changes & {DIRTY, PATH}:
+            self._update_title()
+
     def _update_title(self, *_):
         name = Path(self.document.path).name if self.document.path else "untitled"
         self.setWindowTitle(f"{name}[*] \u2014 Slackline")
@@ -185,8 +176,12 @@ class MainWindow(QMainWindow):
         state = settings.value("window/state")
         if geometry is not None:
             self.restoreGeometry(geometry)
+        else:
+            self.workspace.fit_to_screen()
         if state is not None:
             self.restoreState(state)
+        else:
+            self.workspace.starting_sizes_when_shown()
         equal = settings.value("view/equal_axes", True)
         equal = equal if isinstance(equal, bool) else str(equal).lower() == "true"
         self.equal_axes_action.setChecked(equal)
@@ -231,7 +226,7 @@ class MainWindow(QMainWindow):
                            path=Path(original) if original else None, note=experiment.note)
         self.document.undo_stack.resetClean()  # recovered edits are unsaved edits
         self._update_title()
-        self.canvas.fit_view_to_data()
+        self.match_axes_to_data()     # as opening a file does
         return True
 
     def closeEvent(self, event):

@@ -7,7 +7,10 @@ current" whose last word is the state: current, solving, or stale with why.
 
 from __future__ import annotations
 
+from PySide6.QtCore import QEvent, QObject
 from PySide6.QtWidgets import QLabel, QProgressBar
+
+from app.document.document import CONFIG, ERROR, PINNED, POINTS, RESULT
 
 KERNEL_WORDS = {"linear": "linear", "polynomial": "polynomial", "rbf": "Gaussian (RBF)"}
 PIN_MESSAGE_MS = 8000
@@ -44,16 +47,25 @@ class StatusReadouts:
         bar.addPermanentWidget(self.busy_indicator)
         self._mouse = None
         canvas.scene().sigMouseMoved.connect(self._mouse_moved)
-        for signal in (document.points_changed, document.config_changed,
-                       document.result_changed):
-            signal.connect(self.refresh)
+        canvas.viewport().installEventFilter(_LeaveWatch(self, canvas.viewport()))
         document.busy_changed.connect(self._busy)
         self._failure = None
-        document.solve_failed.connect(self._failed)
-        document.pinned_changed.connect(self._pinned)
+        document.changed.connect(self._document_changed)
         self.refresh()
 
+    def _document_changed(self, changes):
+        if ERROR in changes:
+            self._failed(self.document.last_error)
+        if changes & {POINTS, CONFIG, RESULT}:
+            self.refresh()
+        if PINNED in changes:
+            self._pinned()
+
     # -- the cursor ------------------------------------------------------------
+    def mouse_left(self):
+        self._mouse = None
+        self._show_cursor()
+
     def _mouse_moved(self, scene_pos):
         view = self.canvas.getPlotItem().getViewBox()
         if not view.sceneBoundingRect().contains(scene_pos):
@@ -141,3 +153,16 @@ class StatusReadouts:
         bar.showMessage(f"pinned the current fit ({KERNEL_WORDS.get(config.kernel)}, {C}): "
                         f"it stays as the dashed grey ghost; Compare lists what changes",
                         PIN_MESSAGE_MS)
+
+
+class _LeaveWatch(QObject):
+    """Clears the cursor read-out when the mouse leaves the canvas."""
+
+    def __init__(self, readouts, parent):
+        super().__init__(parent)
+        self._readouts = readouts
+
+    def eventFilter(self, watched, event):
+        if event.type() == QEvent.Leave:
+            self._readouts.mouse_left()
+        return False

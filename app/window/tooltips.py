@@ -13,7 +13,7 @@ TIPS = {
         "add_positive": "a click on empty canvas adds a point of this class",
         "add_negative": "a click on empty canvas adds a point of this class",
     },
-    "SweepPanel": {
+    "sweep": {
         "c_from": "smallest C of the sweep", "c_to": "largest C of the sweep",
         "steps": "how many values of C, spaced evenly on a log scale",
         "folds": "cross-validation folds (stratified)",
@@ -28,7 +28,7 @@ TIPS = {
         "chart": "errors, support vectors, margin width and objective against C; the "
                  "vertical line is the current C; click to set C",
     },
-    "ComparePanel": {
+    "compare": {
         "pin_button": "keep the current fit as the reference (Ctrl+P); it stays on the "
                       "canvas as a dashed ghost",
         "clear_button": "forget the reference fit",
@@ -59,7 +59,7 @@ def _set(widget, text):
 
 def apply_tooltips(window):
     """Give every listed control of ``window``'s panels its tooltip."""
-    panels = {"controls": window.controls, **window.optional_panels}
+    panels = window.panels          # by their names in app/window/panels.py
     for name, tips in TIPS.items():
         panel = panels.get(name)
         for attribute, text in tips.items() if panel is not None else ():

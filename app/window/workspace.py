@@ -14,24 +14,25 @@
 The left column runs the full height (it owns both left corners), so the
 fit settings and the read-outs are always in sight and the canvas gets the
 whole remaining width.  The study views share one tabbed dock under the
-canvas, with the inspector of the selected point beside them: a panel in the
-window's OPTIONAL_PANELS becomes one more tab.  The Fit settings column has a
+canvas, with the inspector of the selected point beside them: a "study"
+panel in app/window/panels.py becomes one more tab.  The Fit settings column has a
 fixed width, so it never jumps when the kernel shows or hides gamma, degree
 and offset.
 """
 
 from __future__ import annotations
 
-import importlib
-
-from PySide6.QtCore import Qt
+from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import QDockWidget, QScrollArea, QTabWidget
 
 SETTINGS_WIDTH = 300       # px: the widest Fit settings row ("C" slider + field) fits
-INSPECTOR_WIDTH = 270      # px: "functional margin y·f  -0.123456" fits
-SETTINGS_HEIGHT = 330      # px: every Fit settings row shown, the polynomial kernel's too
+INSPECTOR_WIDTH = 250      # px: "functional margin y·f  -0.123456" fits
+SETTINGS_HEIGHT = 425      # px: every Fit settings row shown, the polynomial kernel's too
 STUDY_HEIGHT = 290         # px at 800 high; the sweep charts get >= 220 px of it
 STUDY_MIN_HEIGHT = 270
+STUDY_SHARE = 0.3          # of a taller window's height
+BASE_SIZE = (1280, 800)    # the smallest screen the layout is designed for
+SCREEN_SHARE = 0.92        # of a larger screen, on first start (later: as the user left it)
 
 
 def _scrolled(widget):
@@ -81,19 +82,16 @@ class Workspace:
         self.study_panels[title] = panel
         return index
 
-    def add_optional_studies(self, document, specs):
-        """(module, class, title[, tooltip]) panels written elsewhere; absent ones are skipped."""
-        panels = {}
-        for spec in specs:
-            module_name, class_name, title = spec[:3]
-            try:
-                panel_class = getattr(importlib.import_module(module_name), class_name)
-            except (ImportError, AttributeError):
-                continue
-            panel = panel_class(document)
-            panels[class_name] = panel
-            self.add_study(title, panel, spec[3] if len(spec) > 3 else "")
-        return panels
+    def place(self, spec, panel):
+        """Put ``panel`` where its app.window.panels entry says."""
+        if spec.place == "settings":
+            self.settings_column(panel)
+        elif spec.place == "left":
+            self.dock(spec.title, panel, Qt.LeftDockWidgetArea, scroll=True)
+        elif spec.place == "study":
+            self.add_study(spec.title, panel, spec.tooltip)
+        elif spec.place != "inspector":          # the inspector is docked by finish()
+            raise ValueError(f"unknown panel place {spec.place!r} for {spec.title!r}")
 
     def finish(self, inspector=None):
         """Dock the study tabs (and the inspector beside them); set the starting sizes."""
@@ -103,11 +101,34 @@ class Workspace:
         if inspector is not None:
             point = self.dock("Point", inspector, Qt.BottomDockWidgetArea, scroll=True)
             window.splitDockWidget(study, point, Qt.Horizontal)
-            window.resizeDocks([point], [INSPECTOR_WIDTH], Qt.Horizontal)
-        window.resizeDocks([study], [STUDY_HEIGHT], Qt.Vertical)
-        left = [self.docks[t] for t in ("Fit settings", "Summary") if t in self.docks]
+        self.starting_sizes()
+
+    def starting_sizes(self):
+        """The designed sizes of the columns and rows (before the user moves them)."""
+        window, docks = self.window, self.docks
+        if "Point" in docks:
+            window.resizeDocks([docks["Point"]], [INSPECTOR_WIDTH], Qt.Horizontal)
+        study = max(STUDY_HEIGHT, int(window.height() * STUDY_SHARE))
+        window.resizeDocks([docks["Studies"]], [study], Qt.Vertical)
+        left = [docks[t] for t in ("Fit settings", "Summary") if t in docks]
         window.resizeDocks(left, [SETTINGS_HEIGHT, window.height() - SETTINGS_HEIGHT][:len(left)],
                            Qt.Vertical)
+
+    def starting_sizes_when_shown(self):
+        """Once the window is on screen at its final size (first start only)."""
+        QTimer.singleShot(0, self.starting_sizes)
+
+    def fit_to_screen(self, share: float = SCREEN_SHARE):
+        """First start: 1280 x 800, or ``share`` of a larger screen, centred on it."""
+        window, screen = self.window, self.window.screen()
+        if screen is None:
+            return
+        room = screen.availableGeometry()
+        width = min(room.width(), max(BASE_SIZE[0], int(room.width() * share)))
+        height = min(room.height(), max(BASE_SIZE[1], int(room.height() * share)))
+        window.resize(width, height)
+        window.move(room.x() + (room.width() - width) // 2,
+                    room.y() + (room.height() - height) // 2)
 
     # -- use -------------------------------------------------------------------
     def show_study(self, title):

@@ -77,3 +77,12 @@ def test_ctrl_p_without_a_fit_says_there_is_nothing_to_pin(window, qtbot):
     qtbot.keyClick(window, "p", Qt.ControlModifier)
     assert window.document.pinned is None
     assert "nothing to pin" in window.statusBar().currentMessage()
+
+
+def test_the_cursor_read_out_clears_when_the_mouse_leaves_the_canvas(window, qtbot):
+    from PySide6.QtCore import QEvent
+    from PySide6.QtWidgets import QApplication
+    load_points(window, qtbot, gauge_points())
+    assert _hover(window, qtbot, 0.5, 0.5)
+    QApplication.sendEvent(window.canvas.viewport(), QEvent(QEvent.Leave))
+    assert window.status.cursor.text() == ""

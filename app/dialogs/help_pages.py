@@ -34,7 +34,7 @@ decide where the boundary lies.  A <b>short line from a point</b> is its slack
 &xi;: it runs to where the point would have to be to sit on its own margin edge.
 Points outside the band have no slack and no say.</p>
 <p>The <b>arrow</b> (linear kernel) is w, from the boundary to the edge f = +1:
-its length is 1/|w|, half the margin width.  w is at right angles to the
+its length is <nobr>1/|w|</nobr>, half the margin width.  w is at right angles to the
 boundary in the data's units.  When the two axes are not drawn to the same
 scale the arrow does not look perpendicular, and the mark <i>axes not to scale</i>
 stands beside it; View &rarr; Equal axis scales draws them to scale.</p>

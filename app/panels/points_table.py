@@ -177,7 +177,7 @@ class PointsModel(QAbstractTableModel):
                 return ""
             if column == 9:
                 return SHORT_STATUS[value]
-            digits = 6 if column in (1, 2) else 4
+            digits = {1: 6, 2: 6, 7: 3, 8: 3}.get(column, 4)   # alpha, slack: room for e-12
             return f"{value:.{digits}g}" if isinstance(value, float) else str(value)
         if role == Qt.TextAlignmentRole and index.column() not in (3, 9):
             return int(Qt.AlignRight | Qt.AlignVCenter)
@@ -227,8 +227,14 @@ class PointsTable(QWidget):
         header = self.view.horizontalHeader()
         header.setMinimumSectionSize(36)
         header.setSectionResizeMode(QHeaderView.Stretch)      # share the width: no h-scroll
-        header.setSectionResizeMode(0, QHeaderView.ResizeToContents)
-        header.setSectionResizeMode(9, QHeaderView.ResizeToContents)
+        # the row number and the status get fixed widths from the font: measuring
+        # contents would walk every row on every new fit
+        metrics = self.view.fontMetrics()
+        widths = {0: metrics.horizontalAdvance("00000") + 18,
+                  9: max(metrics.horizontalAdvance(t) for t in SHORT_STATUS.values()) + 14}
+        for column, width in widths.items():
+            header.setSectionResizeMode(column, QHeaderView.Fixed)
+            header.resizeSection(column, width)
         header.setTextElideMode(Qt.ElideRight)
         self.view.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
         triggers = QAbstractItemView

@@ -19,7 +19,7 @@ from app.panels.study_layout import ChartArea, side_column
 from app.panels.sweep_chart import SweepChart
 from app.document.sweep_store import sweep_store
 
-SIDE_WIDTH = 290            # px: the settings, buttons and the suggestion beside the charts
+SIDE_WIDTH = 270            # px: the settings, buttons and the suggestion beside the charts
 PARALLEL_FROM_POINTS = 200   # below this, process start-up costs more than it saves
 SUGGESTION_NOTE = ("Suggestion only, from cross-validation on these points — not a "
                    "validated model. In an SVM a smaller C is the more regularised, "

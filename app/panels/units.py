@@ -20,19 +20,18 @@ def length_suffix(result, units) -> str:
 
 
 def units_sentence(result, units, feature_names=("x1", "x2")) -> str:
-    """One sentence for the summary: in which units its lengths are."""
+    """For the summary's units row: in which units w, b, margin width and distances are."""
     scaled = SCALING_WORDS.get(result.config.scaling, result.config.scaling)
     if result.w is None:
         of = f" of the {scaled} features" if scaled else ""
-        return (f"margin width and distances are in the kernel's feature space{of}, "
-                f"not in the data's units")
+        return f"the kernel's feature space{of}, not the data's units"
     first, second = (units or ("", ""))[:2]
     back = f", converted back from the {scaled} features the fit ran on" if scaled else ""
     if first and first == second:
-        where = f"in the data's own units ({first})"
+        where = f"the data's own ({first})"
     elif first or second:
         names = [f"{n} in {u or 'no unit'}" for n, u in zip(feature_names, (first, second))]
-        where = f"in the data's own units ({', '.join(names)}: a distance mixes them)"
+        where = f"the data's own ({', '.join(names)}: a distance mixes them)"
     else:
-        where = "in the data's own units (the file names none)"
-    return f"w, b, margin width and distances are {where}{back}"
+        where = "the data's own (the file names none)"
+    return f"{where}{back}"

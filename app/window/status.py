@@ -7,6 +7,7 @@ current" whose last word is the state: current, solving, or stale with why.
 
 from __future__ import annotations
 
+from PySide6.QtCore import QEvent, QObject
 from PySide6.QtWidgets import QLabel, QProgressBar
 
 from app.document.document import CONFIG, ERROR, PINNED, POINTS, RESULT
@@ -46,6 +47,7 @@ class StatusReadouts:
         bar.addPermanentWidget(self.busy_indicator)
         self._mouse = None
         canvas.scene().sigMouseMoved.connect(self._mouse_moved)
+        canvas.viewport().installEventFilter(_LeaveWatch(self, canvas.viewport()))
         document.busy_changed.connect(self._busy)
         self._failure = None
         document.changed.connect(self._document_changed)
@@ -60,6 +62,10 @@ class StatusReadouts:
             self._pinned()
 
     # -- the cursor ------------------------------------------------------------
+    def mouse_left(self):
+        self._mouse = None
+        self._show_cursor()
+
     def _mouse_moved(self, scene_pos):
         view = self.canvas.getPlotItem().getViewBox()
         if not view.sceneBoundingRect().contains(scene_pos):
@@ -147,3 +153,16 @@ class StatusReadouts:
         bar.showMessage(f"pinned the current fit ({KERNEL_WORDS.get(config.kernel)}, {C}): "
                         f"it stays as the dashed grey ghost; Compare lists what changes",
                         PIN_MESSAGE_MS)
+
+
+class _LeaveWatch(QObject):
+    """Clears the cursor read-out when the mouse leaves the canvas."""
+
+    def __init__(self, readouts, parent):
+        super().__init__(parent)
+        self._readouts = readouts
+
+    def eventFilter(self, watched, event):
+        if event.type() == QEvent.Leave:
+            self._readouts.mouse_left()
+        return False

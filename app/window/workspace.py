@@ -26,10 +26,11 @@ from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import QDockWidget, QScrollArea, QTabWidget
 
 SETTINGS_WIDTH = 300       # px: the widest Fit settings row ("C" slider + field) fits
-INSPECTOR_WIDTH = 280      # px: "functional margin y·f  -0.123456" fits
-SETTINGS_HEIGHT = 330      # px: every Fit settings row shown, the polynomial kernel's too
+INSPECTOR_WIDTH = 250      # px: "functional margin y·f  -0.123456" fits
+SETTINGS_HEIGHT = 425      # px: every Fit settings row shown, the polynomial kernel's too
 STUDY_HEIGHT = 290         # px at 800 high; the sweep charts get >= 220 px of it
 STUDY_MIN_HEIGHT = 270
+STUDY_SHARE = 0.3          # of a taller window's height
 BASE_SIZE = (1280, 800)    # the smallest screen the layout is designed for
 SCREEN_SHARE = 0.92        # of a larger screen, on first start (later: as the user left it)
 
@@ -107,7 +108,8 @@ class Workspace:
         window, docks = self.window, self.docks
         if "Point" in docks:
             window.resizeDocks([docks["Point"]], [INSPECTOR_WIDTH], Qt.Horizontal)
-        window.resizeDocks([docks["Studies"]], [STUDY_HEIGHT], Qt.Vertical)
+        study = max(STUDY_HEIGHT, int(window.height() * STUDY_SHARE))
+        window.resizeDocks([docks["Studies"]], [study], Qt.Vertical)
         left = [docks[t] for t in ("Fit settings", "Summary") if t in docks]
         window.resizeDocks(left, [SETTINGS_HEIGHT, window.height() - SETTINGS_HEIGHT][:len(left)],
                            Qt.Vertical)

@@ -93,8 +93,9 @@ def step_latency(app, window, dataset, config, steps, path=False):
 def drag_stalls(app, window, dataset, seconds=2.0, step_ms=16, path=False):
     """Longest gap between 5 ms timer ticks while the slider moves every step_ms."""
     from PySide6.QtCore import QElapsedTimer, QTimer
+    from solver.config import FitConfig
     window.document.paths.enabled = path
-    window.document.load(dataset, None)
+    window.document.load(dataset, FitConfig(kernel="linear"))   # not the last case's kernel
     window.document.wait_for_solve(600000)
     if path:
         _wait_for_path(app, window)

@@ -4,7 +4,8 @@ The file is validated first (schema, consistency, checksum); an invalid file
 raises FileFormatError, which the dispatcher turns into exit status 2.  The
 points are then fitted again with the stored configuration and solver
 options, and the new figures are compared with the stored ones (the
-tolerances are listed in solver.study.agreement).
+tolerances are listed in solver.study.agreement; stored held-out points in
+solver.study.heldout.heldout_agreement).
 
 Exit status: 0 when everything agrees, 1 when something drifts (or there
 are no stored results to compare, or the stored configuration no longer
@@ -19,8 +20,8 @@ from dataclasses import asdict
 import numpy as np
 
 from solver import ConvergenceError, NotSeparableError, fit
-from solver.files import load_experiment, provenance
-from solver.study import agreement
+from solver.files import heldout_from_section, load_experiment, provenance
+from solver.study import agreement, heldout_agreement
 from cli.outputs import print_json
 
 
@@ -44,6 +45,10 @@ def run(args) -> int:
         return 1
     fresh = result.to_dict()
     comparisons = agreement(stored, fresh, np.asarray(result.penalties))
+    if experiment.heldout is not None:
+        points = heldout_from_section(experiment.heldout, dataset.label_mapping)
+        comparisons += heldout_agreement(experiment.heldout, points, dataset.label_mapping,
+                                         result)
     drifted = [c for c in comparisons if not c.agrees]
     changed = version_changes(experiment.written, provenance())
     if args.json:
@@ -73,7 +78,7 @@ def report_text(name, n_points, config, comparisons) -> str:
              f"{verdict}",
              f"  {'quantity':<18}{'largest difference':>20}{'allowed':>12}"]
     for c in comparisons:
-        if c.quantity in ("status", "support vectors"):
+        if c.quantity in ("status", "support vectors", "held-out confusion"):
             shown = f"{int(c.difference)} differ" if c.difference else c.detail or "identical"
             lines.append(f"  {c.quantity:<18}{shown:>20}{'none':>12}"
                          + ("" if c.agrees else "   <- " + c.detail))

@@ -24,6 +24,7 @@ COMMANDS = {
     "export": ("cli.export", "write an experiment's points table or classifier file"),
     "sweep": ("cli.sweep", "fit across a range of C with cross-validation"),
     "render": ("cli.render", "draw an experiment's canvas to a PNG/SVG file, no window"),
+    "predict": ("cli.predict", "apply an experiment's classifier to new rows of a CSV/TSV file"),
 }
 
 

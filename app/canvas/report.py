@@ -18,7 +18,7 @@ from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPainter, QPdfWriter, 
 from solver.study import compare
 from solver.study import points_fingerprint
 from solver import InputError
-from solver.study import summary
+from solver.study import heldout_sentence, summary
 from solver import CAUTIONS, STATUS_TEXT, STATUSES
 
 LAYOUT_WIDTH = 1000          # logical width the page is laid out at, in pixels
@@ -28,7 +28,7 @@ PICTURE = (470, 360)
 
 def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=None,
                   cv_after=None, title: str = "Support vector machine fit", note=None,
-                  edited: bool = False) -> Path:
+                  edited: bool = False, heldout=None) -> Path:
     """Write the one-page report to ``path`` (.pdf or .png) and return the path.
 
     ``note`` is the experiment's note; ``edited`` says the points were changed
@@ -42,7 +42,7 @@ def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=Non
     from app.canvas.figure import ensure_application
     ensure_application()
     document = build_document(dataset, current, pinned, sweep, cv_before, cv_after, title,
-                              note=note, edited=edited)
+                              note=note, edited=edited, heldout=heldout)
     from solver.files.atomic import commit, stage
     staged = stage(path)      # written beside the target, swapped in only when complete
     try:
@@ -95,7 +95,8 @@ def _paint_fitted(painter: QPainter, document: QTextDocument, width: float, heig
 
 def build_document(dataset, current, pinned=None, sweep=None, cv_before=None, cv_after=None,
                    title="Support vector machine fit", note=None,
-                   edited=False) -> QTextDocument:
+                   edited=False, heldout=None) -> QTextDocument:
+    """``heldout``: the current fit's Confusion on held-out points, if any."""
     from app.canvas.figure import draw_result
     doc = QTextDocument()
     doc.setPageSize(QSizeF(LAYOUT_WIDTH, 100000))
@@ -121,6 +122,9 @@ def build_document(dataset, current, pinned=None, sweep=None, cv_before=None, cv
         parts.append(_comparison_table(comparison))
     else:
         parts.append(f"<p>{_e(_single_fit_line(current))}</p>")
+    if heldout is not None:
+        parts.append(f"<p><b>Held-out check.</b> "
+                     f"{_e(heldout_sentence(heldout, current.training_error))}</p>")
     if sweep is not None and len(sweep.C):
         from app.panels.sweep_chart import chart_image
         doc.addResource(QTextDocument.ImageResource, QUrl("image://sweep"),

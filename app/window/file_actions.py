@@ -17,6 +17,8 @@ from solver.files.atomic import FileChangedError
 from app.window.write_guard import ANY, WriteGuard
 from solver.files import TABLE_FILTER, TABLE_SUFFIXES
 
+from app.document.evidence import evidence_of
+
 EXPERIMENT_FILTER = "Slackline experiments (*.json)"
 MAX_RECENT = 8
 
@@ -68,6 +70,7 @@ class FileActions(QObject):
     def new(self):
         if self.confirm_discard():
             self.document.new()
+            evidence_of(self.document).reset()
             self.canvas.fit_view_to_data()
 
     def open(self):
@@ -93,6 +96,7 @@ class FileActions(QObject):
         self.document.load(experiment.dataset, experiment.config, path=path,
                            note=experiment.note)
         self.guard.remember(path, dataset=experiment.dataset)
+        evidence_of(self.document).reset(experiment.heldout)
         self.window.match_axes_to_data()
         self._add_recent(path)
         self._remember_folder(path)
@@ -137,15 +141,18 @@ class FileActions(QObject):
             return False
         expected = self.guard.expected(path)
         try:
+            heldout = evidence_of(doc).heldout_section() if result else None
             try:
                 save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config,
+                                heldout=heldout,
                                 **({} if expected is ANY else {"expect": expected}))
             except FileChangedError:
                 if not self.guard.confirm(f"{Path(path).name} was changed by another program "
                                           "since this window read it. Replace it anyway?",
                                           "File changed on disk"):
                     raise
-                save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config)
+                save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config,
+                                heldout=heldout)
         except SlacklineError as exc:
             self._error("Cannot save the experiment", exc)
             return False

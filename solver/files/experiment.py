@@ -44,10 +44,12 @@ class Experiment:
     written: dict                # provenance: at, slackline, python, numpy, cvxopt, platform
     format_version: int = FORMAT_VERSION   # as found in the file, before migration
     checksum: str | None = None
+    heldout: dict | None = None  # the stored held-out section (heldout_points), if any
 
 
 # -- writing -------------------------------------------------------------------
-def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=None) -> dict:
+def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=None,
+                       heldout=None) -> dict:
     """The complete document (checksum included) for ``dataset`` fitted with ``config``."""
     if not isinstance(dataset, Dataset):
         raise InputError(f"dataset must be a Dataset; got {type(dataset).__name__}")
@@ -91,19 +93,22 @@ def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=No
         "config": config.to_dict(),
         "results": None if result is None else result.to_dict(),
     }
+    if heldout is not None:          # a heldout_points.heldout_section(...)
+        document["heldout"] = heldout
     document["checksum"] = {"algorithm": "sha256", "value": content_checksum(document)}
     return document
 
 
 def save_experiment(path, dataset: Dataset, result, note=None, config=None,
-                    **write_options) -> Path:
+                    heldout=None, **write_options) -> Path:
     """Write ``dataset`` with ``result`` (or, unfitted, with ``config``) to ``path`` atomically.
 
+    ``heldout``: a held-out section (solver.files.heldout_points), stored beside the fit.
     ``write_options`` go to atomic_write_text (``expect``: what must still be on disk).
     """
     if config is None:
         config = result.config if result is not None else FitConfig()
-    document = experiment_to_dict(dataset, config, result, note=note)
+    document = experiment_to_dict(dataset, config, result, note=note, heldout=heldout)
     atomic_write_text(path, json_text(document), **write_options)
     return Path(path)
 
@@ -205,7 +210,8 @@ def _build(document: dict, found_version) -> Experiment:
                       written=dict(document["written"]),
                       format_version=found_version if isinstance(found_version, int)
                       else FORMAT_VERSION,
-                      checksum=document["checksum"]["value"])
+                      checksum=document["checksum"]["value"],
+                      heldout=document.get("heldout"))
 
 
 def _sealed_checksum_problems(document: dict) -> list[str]:

@@ -14,7 +14,7 @@ import sys
 from solver import CAUTION_LINE, InputError
 from solver.files import atomic_write_text, load_experiment, read_new_rows, scored_csv
 from solver.study import Classifier, confusion, score
-from cli.evidence_io import refuse_overwriting_inputs
+from cli.outputs import NON_FINITE_KEY, check_outputs, strict, write_outputs
 
 
 def add_arguments(parser) -> None:
@@ -33,8 +33,7 @@ def add_arguments(parser) -> None:
 
 
 def run(args) -> int:
-    if args.output:
-        refuse_overwriting_inputs(args.output, [args.experiment, args.data])
+    outputs = check_outputs([args.experiment, args.data], {"-o": args.output})
     experiment = load_experiment(args.experiment)
     if experiment.results is None:
         raise InputError(f"{args.experiment} holds no fitted classifier (it was saved before "
@@ -48,13 +47,16 @@ def run(args) -> int:
     counts = None if rows.signs is None else confusion(rows.signs, scores.signs,
                                                        dataset.label_mapping)
     if args.json:
-        text = json.dumps(as_json(rows, scores, counts, dataset), allow_nan=False) + "\n"
+        clean, replaced = strict(as_json(rows, scores, counts, dataset))
+        if replaced:
+            clean[NON_FINITE_KEY] = replaced
+        text = json.dumps(clean, allow_nan=False) + "\n"
     elif args.csv:
         text = as_csv(rows, scores, dataset)
     else:
         text = as_text(rows, scores, counts, dataset, args.experiment)
-    if args.output:
-        atomic_write_text(args.output, text)
+    if outputs:
+        write_outputs([(outputs[0], lambda path: atomic_write_text(path, text))])
         print(f"wrote {len(rows)} scored rows to {args.output}", file=sys.stderr)
     else:
         sys.stdout.write(text)

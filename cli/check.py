@@ -14,7 +14,6 @@ solves), 2 when the file is invalid.
 
 from __future__ import annotations
 
-import json
 import sys
 from dataclasses import asdict
 
@@ -23,6 +22,7 @@ import numpy as np
 from solver import ConvergenceError, NotSeparableError, fit
 from solver.files import heldout_from_section, load_experiment, provenance
 from solver.study import agreement, heldout_agreement
+from cli.outputs import print_json
 
 
 def add_arguments(parser) -> None:
@@ -45,18 +45,16 @@ def run(args) -> int:
         return 1
     fresh = result.to_dict()
     comparisons = agreement(stored, fresh, np.asarray(result.penalties))
-    if experiment.heldout is not None:
+    if experiment.heldout is not None:       # stored held-out points: solver.study.heldout
         points = heldout_from_section(experiment.heldout, dataset.label_mapping)
         comparisons += heldout_agreement(experiment.heldout, points, dataset.label_mapping,
                                          result)
     drifted = [c for c in comparisons if not c.agrees]
     changed = version_changes(experiment.written, provenance())
     if args.json:
-        json.dump({"file": str(args.experiment), "agrees": not drifted,
-                   "software_changes": changed,
-                   "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]},
-                  sys.stdout)
-        sys.stdout.write("\n")
+        print_json({"file": str(args.experiment), "agrees": not drifted,
+                    "software_changes": changed,
+                    "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]})
     else:
         print(report_text(args.experiment, len(dataset), config, comparisons))
         if changed:

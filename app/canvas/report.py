@@ -43,6 +43,18 @@ def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=Non
     ensure_application()
     document = build_document(dataset, current, pinned, sweep, cv_before, cv_after, title,
                               note=note, edited=edited, heldout=heldout)
+    from solver.files.atomic import commit, stage
+    staged = stage(path)      # written beside the target, swapped in only when complete
+    try:
+        _write_report(staged, suffix, document, title)
+    except BaseException:
+        staged.unlink(missing_ok=True)
+        raise
+    commit([(staged, path)])
+    return path
+
+
+def _write_report(path: Path, suffix: str, document: QTextDocument, title: str) -> None:
     if suffix == ".pdf":
         writer = QPdfWriter(str(path))
         writer.setResolution(150)
@@ -50,7 +62,10 @@ def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=Non
                                          QMarginsF(12, 12, 12, 12)))
         writer.setTitle(title)
         writer.setCreator("Slackline")
-        painter = QPainter(writer)
+        painter = QPainter()
+        if not painter.begin(writer):
+            raise InputError(f"could not write the report {path.name}; check that its folder "
+                             f"is writable")
         _paint_fitted(painter, document, writer.width(), writer.height())
         painter.end()
     else:
@@ -61,10 +76,9 @@ def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=Non
         painter.translate(margin, margin)
         _paint_fitted(painter, document, PNG_SIZE[0] - 2 * margin, PNG_SIZE[1] - 2 * margin)
         painter.end()
-        if not image.save(str(path)):
+        if not image.save(str(path), "PNG"):
             raise InputError(f"could not write {path}; check that the folder exists and "
                              f"is writable")
-    return path
 
 
 def _paint_fitted(painter: QPainter, document: QTextDocument, width: float, height: float):

@@ -1,0 +1,168 @@
+"""Kernel (RBF) fits beside scikit-learn's SVC: the grid of issue 13.
+
+Every cell: four data shapes (overlapping blobs, curved classes, rings,
+clusters of different density), standardised; gamma in {0.1, 0.5, 2, 10, 50},
+C in {1, 100}; n in {1,000, 5,000, 10,000}.  Printed per cell: our whole-call
+wall time, SVC's (default tol=1e-3) on the same data in the same run, the
+ratio SVC / ours (above 1: we are faster), both dual objectives
+D = 1'a - 1/2 a'Qa (SVC's from its dual coefficients; ours is the larger or
+equal one when exact), our relative duality gap and rounds.  Then warm steps
+at n = 1,000 (C +10%, gamma +10%) and the peak memory of the largest cell.
+
+Environment (to shrink the grid for a quick look):
+  KERNEL_BENCH_N        sizes, e.g. "1000" (default "1000,5000,10000")
+  KERNEL_BENCH_SHAPES   e.g. "blobs,moons" (default all four)
+  KERNEL_BENCH_GAMMAS   e.g. "0.5,10" (default "0.1,0.5,2,10,50")
+  KERNEL_BENCH_CS       e.g. "1" (default "1,100")
+  KERNEL_BENCH_LARGE_SHAPES  shapes run at n > 1,000 (default "blobs": the narrow-kernel
+                        cells at n = 10,000 take minutes)
+"""
+
+from __future__ import annotations
+
+import os
+import resource
+import statistics
+import time
+import tracemalloc
+
+import numpy as np
+from sklearn.datasets import make_blobs, make_circles, make_moons
+from sklearn.svm import SVC
+
+from solver import FitConfig, fit
+from solver.errors import ConvergenceError
+from solver.kernels import rbf_matrix
+
+
+def _env_list(name, default, cast=float):
+    return [cast(v) for v in os.environ.get(name, default).split(",") if v.strip()]
+
+
+def _standardised(X):
+    return (X - X.mean(axis=0)) / X.std(axis=0)
+
+
+def shape(name: str, n: int, seed: int = 0):
+    """(X standardised, y in {-1, +1}) of one of the four bench shapes."""
+    rng = np.random.default_rng(seed)
+    if name == "blobs":        # two unit Gaussians 1.5 apart on each axis: heavy overlap
+        half = n // 2
+        X = np.vstack([rng.normal([0.0, 0.0], 1.0, (half, 2)),
+                       rng.normal([1.5, 1.5], 1.0, (n - half, 2))])
+        y = np.r_[-np.ones(half), np.ones(n - half)]
+    elif name == "moons":      # two interleaved half circles
+        X, label = make_moons(n, noise=0.25, random_state=seed)
+        y = 2.0 * label - 1.0
+    elif name == "rings":      # one ring inside another
+        X, label = make_circles(n, noise=0.15, factor=0.5, random_state=seed)
+        y = 2.0 * label - 1.0
+    elif name == "density":    # four clusters of spread 0.3 .. 1.5, classes across them
+        X, label = make_blobs(n, centers=[[0, 0], [3, 0], [0, 3], [3, 3]],
+                              cluster_std=[0.3, 1.2, 0.6, 1.5], random_state=seed)
+        y = np.where(label % 3 == 0, 1.0, -1.0)
+    else:
+        raise ValueError(f"unknown bench shape {name!r}")
+    return _standardised(X), y
+
+
+def dual_objective(alpha, X, y, gamma):
+    support = np.flatnonzero(alpha > 0)
+    coef = alpha[support] * y[support]
+    S = X[support]
+    return float(alpha.sum() - 0.5 * coef @ rbf_matrix(S, S, gamma) @ coef)
+
+
+def svc_alpha(svc, n):
+    alpha = np.zeros(n)
+    alpha[svc.support_] = np.abs(svc.dual_coef_[0])
+    return alpha
+
+
+def _ours(X, y, config, warm=None):
+    start = time.perf_counter()
+    try:
+        result = fit(X, y, config, warm_start=warm)
+        note = ""
+    except ConvergenceError as exc:
+        result, note = exc.best, "NOT CONVERGED"
+    return time.perf_counter() - start, result, note
+
+
+def cell(name, n, gamma, C):
+    X, y = shape(name, n)
+    config = FitConfig(C=C, kernel="rbf", gamma=gamma)
+    ours, result, note = _ours(X, y, config)
+    start = time.perf_counter()
+    svc = SVC(C=C, gamma=gamma, tol=1e-3).fit(X, y)
+    theirs = time.perf_counter() - start
+    d_ours = result.dual_objective if result is not None else float("nan")
+    d_svc = dual_objective(svc_alpha(svc, n), X, y, gamma)
+    gap = result.relative_gap if result is not None else float("nan")
+    rounds = result.rounds if result is not None else 0
+    print(f"{name:<8} {n:>6,} {gamma:>5g} {C:>5g} {ours * 1e3:>9.1f} {theirs * 1e3:>9.1f} "
+          f"{theirs / ours:>6.2f} {d_ours:>15.8f} {d_svc:>15.8f} {gap:>8.1e} {rounds:>4} {note}",
+          flush=True)
+    return theirs / ours
+
+
+def warm_steps(name="blobs", n=1_000, steps=5):
+    """Slider steps from a converged fit: C +10% and gamma +10%, median of ``steps``."""
+    X, y = shape(name, n)
+    for gamma in (0.5, 2.0, 10.0):
+        for C in (1.0, 100.0):
+            base = FitConfig(C=C, kernel="rbf", gamma=gamma)
+            for label, change in (("C +10%", "C"), ("gamma +10%", "gamma")):
+                previous = fit(X, y, base)
+                times, rounds = [], []
+                for step in range(1, steps + 1):
+                    value = getattr(base, change) * 1.1 ** step
+                    seconds, result, _ = _ours(X, y, base.with_changes(**{change: value}),
+                                               warm=previous)
+                    times.append(seconds)
+                    rounds.append(result.rounds)
+                    previous = result
+                print(f"warm {label:<11} {name} n={n:,} gamma={gamma:g} C={C:g}: median "
+                      f"{statistics.median(times) * 1e3:6.1f} ms, max {max(times) * 1e3:6.1f} ms, "
+                      f"rounds {rounds}", flush=True)
+
+
+def peak_memory(name, n, gamma, C):
+    X, y = shape(name, n)
+    tracemalloc.start()
+    fit(X, y, FitConfig(C=C, kernel="rbf", gamma=gamma))
+    peak = tracemalloc.get_traced_memory()[1]
+    tracemalloc.stop()
+    rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+    print(f"peak memory {name} n={n:,} gamma={gamma:g} C={C:g}: {peak / 2**20:.0f} MiB traced "
+          f"(numpy), process max RSS so far {rss:.0f} MiB; an n x n matrix would be "
+          f"{8 * n * n / 2**20:.0f} MiB", flush=True)
+
+
+def main():
+    sizes = _env_list("KERNEL_BENCH_N", "1000,5000,10000", int)
+    shapes = _env_list("KERNEL_BENCH_SHAPES", "blobs,moons,rings,density", str)
+    large = _env_list("KERNEL_BENCH_LARGE_SHAPES", "blobs", str)
+    gammas = _env_list("KERNEL_BENCH_GAMMAS", "0.1,0.5,2,10,50")
+    Cs = _env_list("KERNEL_BENCH_CS", "1,100")
+    fit(*shape("blobs", 300), FitConfig(kernel="rbf"))           # warm up imports
+    print("RBF fits beside SVC (tol=1e-3), same data, same run; ratio = SVC / ours.")
+    print(f"{'shape':<8} {'n':>6} {'gamma':>5} {'C':>5} {'ours ms':>9} {'SVC ms':>9} "
+          f"{'ratio':>6} {'D ours':>15} {'D SVC':>15} {'gap':>8} {'rnds':>4}")
+    ratios = {}
+    for n in sizes:
+        for name in (shapes if n <= 1_000 else [s for s in shapes if s in large]):
+            for gamma in gammas:
+                for C in Cs:
+                    ratios[(name, n, gamma, C)] = cell(name, n, gamma, C)
+    for n in sizes:
+        values = [r for key, r in ratios.items() if key[1] == n]
+        if values:
+            print(f"n={n:,}: SVC/ours min {min(values):.2f}, median "
+                  f"{statistics.median(values):.2f} over {len(values)} cells")
+    warm_steps()
+    peak_memory("blobs", max(sizes), 0.5, 1.0)
+
+
+if __name__ == "__main__":
+    main()

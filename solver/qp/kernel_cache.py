@@ -1,0 +1,95 @@
+"""Columns of the kernel matrix on demand, kept in one fixed buffer.
+
+The decomposition touches K only through K[:, W] (gradient updates) and
+K[W, W] (the sub-QP) for working sets W that overlap from round to round.
+Column j is computed once, as a contiguous row of ``store``, and kept until
+the buffer is full; then the columns used longest ago make room.  The
+buffer holds at most BUDGET bytes, so at n = 10,000 no n x n matrix exists.
+
+Kernel values are computed in blocks of about BLOCK entries: a block's
+temporaries stay in cache, and the exponential of a cached block runs at
+vector speed where one large fresh array spends most of its time on page
+faults.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+BUDGET = 200 * 2**20        # bytes of kernel columns kept
+BLOCK = 2**17               # kernel entries computed at a time
+MIN_CAPACITY = 64
+
+
+class KernelColumns:
+    """K[:, j] = k(X, x_j) for the columns a solver asks for."""
+
+    def __init__(self, X: np.ndarray, kernel_matrix, budget: int = BUDGET):
+        self.X = X
+        self.kernel_matrix = kernel_matrix
+        n = len(X)
+        self.capacity = int(min(n, max(MIN_CAPACITY, budget // (8 * n))))
+        self.store = np.empty((self.capacity, n))
+        self.slot = np.full(n, -1, dtype=np.intp)       # where column j lives, -1: absent
+        self.owner = np.full(self.capacity, -1, dtype=np.intp)
+        self.stamp = np.zeros(self.capacity, dtype=np.int64)
+        self.clock = 0
+        self.computed = 0                                # kernel entries evaluated
+
+    @property
+    def nbytes(self) -> int:
+        return self.store.nbytes
+
+    def rows(self, idx: np.ndarray) -> np.ndarray:
+        """K[idx, :] (= K[:, idx]' by symmetry) as a |idx| x n array (a copy)."""
+        return self.store[self._ensure(idx)]
+
+    def block(self, idx: np.ndarray) -> np.ndarray:
+        """K[idx, idx]."""
+        return self.store[self._ensure(idx)][:, idx]
+
+    def product(self, idx: np.ndarray, weights: np.ndarray) -> np.ndarray:
+        """K[:, idx] @ weights, without keeping columns that do not fit."""
+        idx = np.asarray(idx, dtype=np.intp)
+        if len(idx) <= self.capacity:
+            return weights @ self.store[self._ensure(idx)]
+        out = np.zeros(len(self.X))
+        cached = self.slot[idx] >= 0
+        if cached.any():
+            out += weights[cached] @ self.store[self.slot[idx[cached]]]
+        rest = np.flatnonzero(~cached)
+        step = max(1, BLOCK // len(self.X))
+        for start in range(0, len(rest), step):
+            part = rest[start:start + step]
+            out += weights[part] @ self.kernel_matrix(self.X[idx[part]], self.X)
+        self.computed += len(rest) * len(self.X)
+        return out
+
+    def _ensure(self, idx: np.ndarray) -> np.ndarray:
+        """Slots of columns idx (|idx| <= capacity), computing the missing ones."""
+        idx = np.asarray(idx, dtype=np.intp)
+        self.clock += 1
+        missing = idx[self.slot[idx] < 0]
+        if len(missing):
+            free = np.flatnonzero(self.owner < 0)
+            if len(free) < len(missing):
+                # evict the least recently used columns not wanted now
+                self.stamp[self.slot[idx[self.slot[idx] >= 0]]] = self.clock
+                used = np.flatnonzero((self.owner >= 0) & (self.stamp < self.clock))
+                victims = used[np.argsort(self.stamp[used], kind="stable")]
+                victims = victims[:len(missing) - len(free)]
+                self.slot[self.owner[victims]] = -1
+                self.owner[victims] = -1
+                free = np.concatenate([free, victims])
+            targets = free[:len(missing)]
+            step = max(1, BLOCK // len(self.X))
+            for start in range(0, len(missing), step):
+                part = missing[start:start + step]
+                self.store[targets[start:start + step]] = self.kernel_matrix(self.X[part],
+                                                                             self.X)
+            self.slot[missing] = targets
+            self.owner[targets] = missing
+            self.computed += len(missing) * len(self.X)
+        slots = self.slot[idx]
+        self.stamp[slots] = self.clock
+        return slots

@@ -117,13 +117,16 @@ class Influence:
         return (f"the other {self.non_support} points are not support vectors (alpha = 0): "
                 "leaving any of them out changes nothing, by construction")
 
-    def lines(self, top: int = 10) -> list[str]:
+    def lines(self, top: int = 10, source_lines=()) -> list[str]:
+        """The summary's lines; ``source_lines``: each point's line in its file, if known."""
         out = [f"  influence of the {len(self.entries)} support vectors (each left out in "
                "turn; feature scaling held), largest first:"]
         for entry in self.entries[:top]:
             angle = "" if entry.angle_change is None else \
                 f"angle {entry.angle_change:+.3g} deg, "
-            out.append(f"    point {entry.point}: {angle}b {entry.b_change:+.3g}, margin "
+            where = (f" (line {source_lines[entry.point]})"
+                     if len(source_lines) == self.n_points else "")
+            out.append(f"    point {entry.point}{where}: {angle}b {entry.b_change:+.3g}, margin "
                        f"{entry.margin_change:+.3g}, {len(entry.flips)} training and "
                        f"{len(entry.heldout_flips)} held-out flips")
         if len(self.entries) > top:

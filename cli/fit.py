@@ -27,12 +27,11 @@ def run(args) -> int:
     config = config_from_args(args, dataset)
     print(f"labels: {dataset.mapping_text()}", file=sys.stderr)
     result = fit(dataset.X, dataset.y, config)
-    evidence = evidence_for(args, dataset, result)       # --test, --influence
+    evidence = evidence_for(args, dataset, result)
     if outputs:
         from solver.files import save_experiment  # the file layer
-        heldout = evidence.heldout_section()
-        write_outputs([(outputs[0], lambda path: save_experiment(path, dataset, result,
-                                                                 heldout=heldout))])
+        write_outputs([(outputs[0], lambda path: save_experiment(
+            path, dataset, result, heldout=evidence.heldout_section()))])
     if args.json:
         data = result.to_dict()
         data["functional_margin"] = result.functional_margin.tolist()   # y_i f(x_i)

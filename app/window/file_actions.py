@@ -95,8 +95,8 @@ class FileActions(QObject):
             return False
         self.document.load(experiment.dataset, experiment.config, path=path,
                            note=experiment.note)
-        evidence_of(self.document).reset(experiment.heldout)
         self.guard.remember(path)
+        evidence_of(self.document).reset(experiment.heldout)
         self.window.match_axes_to_data()
         self._add_recent(path)
         self._remember_folder(path)
@@ -140,8 +140,8 @@ class FileActions(QObject):
         if not self.guard.allows(path, doc.path, exporting=False):
             return False
         expected = self.guard.expected(path)
-        heldout = evidence_of(doc).heldout_section() if result is not None else None
         try:
+            heldout = evidence_of(doc).heldout_section() if result else None
             try:
                 save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config,
                                 heldout=heldout,

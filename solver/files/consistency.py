@@ -30,6 +30,7 @@ import math
 from solver.config import FitConfig
 from solver import limits
 from solver.errors import InputError
+from solver.files.heldout_points import section_problems
 from solver.files.schema_check import cap, short
 from solver.kernels import polynomial
 
@@ -45,6 +46,8 @@ def label_key(label):
 
 def consistency_problems(document: dict) -> list[str]:
     problems = _label_problems(document)
+    labels = [m["label"] for m in document["data"]["label_mapping"]]
+    problems += section_problems(document.get("heldout"), labels, key=label_key)
     try:
         FitConfig.from_dict(document["config"])
     except (InputError, TypeError) as exc:

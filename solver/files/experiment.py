@@ -24,7 +24,6 @@ import numpy as np
 from solver.files.atomic import atomic_write_text
 from solver.config import FitConfig
 from solver.files.dataset import Dataset
-from solver.files.heldout_points import section_problems
 from solver.errors import FileFormatError, InputError
 from solver.files.migration import CURRENT_VERSION, migrate
 from solver.files.consistency import consistency_problems, label_key as _key
@@ -100,10 +99,11 @@ def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=No
     return document
 
 
-def save_experiment(path, dataset: Dataset, result, note=None, config=None, heldout=None,
-                    **write_options) -> Path:
+def save_experiment(path, dataset: Dataset, result, note=None, config=None,
+                    heldout=None, **write_options) -> Path:
     """Write ``dataset`` with ``result`` (or, unfitted, with ``config``) to ``path`` atomically.
 
+    ``heldout``: a held-out section (solver.files.heldout_points), stored beside the fit.
     ``write_options`` go to atomic_write_text (``expect``: what must still be on disk).
     """
     if config is None:
@@ -182,9 +182,6 @@ def experiment_from_dict(data, name: str = "the experiment") -> Experiment:
         raise FileFormatError(f"{name} is nested too deeply to be an experiment") from None
     if not problems:
         problems = consistency_problems(migrated)
-        problems += section_problems(migrated.get("heldout"),
-                                     [m["label"] for m in migrated["data"]["label_mapping"]],
-                                     key=_key)
     if not problems:
         problems = _checksum_problems(migrated)
     if problems:

@@ -3,7 +3,8 @@
 import importlib
 import sys
 
-MODULES = ["solver_bench", "kernel_bench", "gui_bench", "sweep_bench", "file_bench"]
+MODULES = ["solver_bench", "kernel_bench", "gui_bench", "sweep_bench", "file_bench",
+           "untrusted_bench", "influence_bench"]
 
 
 def main(argv) -> int:

@@ -4,7 +4,8 @@ The file is validated first (schema, consistency, checksum); an invalid file
 raises FileFormatError, which the dispatcher turns into exit status 2.  The
 points are then fitted again with the stored configuration and solver
 options, and the new figures are compared with the stored ones (the
-tolerances are listed in solver.study.agreement).
+tolerances are listed in solver.study.agreement; stored held-out points in
+solver.study.heldout.heldout_agreement).
 
 Exit status: 0 when everything agrees, 1 when something drifts (or there
 are no stored results to compare, or the stored configuration no longer
@@ -13,15 +14,15 @@ solves), 2 when the file is invalid.
 
 from __future__ import annotations
 
-import json
 import sys
 from dataclasses import asdict
 
 import numpy as np
 
 from solver import ConvergenceError, NotSeparableError, fit
-from solver.files import load_experiment, provenance
-from solver.study import agreement
+from solver.files import heldout_from_section, load_experiment, provenance
+from solver.study import agreement, heldout_agreement
+from cli.outputs import print_json
 
 
 def add_arguments(parser) -> None:
@@ -44,14 +45,16 @@ def run(args) -> int:
         return 1
     fresh = result.to_dict()
     comparisons = agreement(stored, fresh, np.asarray(result.penalties))
+    if experiment.heldout is not None:
+        points = heldout_from_section(experiment.heldout, dataset.label_mapping)
+        comparisons += heldout_agreement(experiment.heldout, points, dataset.label_mapping,
+                                         result)
     drifted = [c for c in comparisons if not c.agrees]
     changed = version_changes(experiment.written, provenance())
     if args.json:
-        json.dump({"file": str(args.experiment), "agrees": not drifted,
-                   "software_changes": changed,
-                   "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]},
-                  sys.stdout)
-        sys.stdout.write("\n")
+        print_json({"file": str(args.experiment), "agrees": not drifted,
+                    "software_changes": changed,
+                    "comparisons": [dict(asdict(c), agrees=c.agrees) for c in comparisons]})
     else:
         print(report_text(args.experiment, len(dataset), config, comparisons))
         if changed:
@@ -75,7 +78,7 @@ def report_text(name, n_points, config, comparisons) -> str:
              f"{verdict}",
              f"  {'quantity':<18}{'largest difference':>20}{'allowed':>12}"]
     for c in comparisons:
-        if c.quantity in ("status", "support vectors"):
+        if c.quantity in ("status", "support vectors", "held-out confusion"):
             shown = f"{int(c.difference)} differ" if c.difference else c.detail or "identical"
             lines.append(f"  {c.quantity:<18}{shown:>20}{'none':>12}"
                          + ("" if c.agrees else "   <- " + c.detail))

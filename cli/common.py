@@ -10,6 +10,7 @@ from solver import FitConfig
 from solver import PARAMETERS
 from solver.files import Dataset, load_table
 from solver import InputError
+from solver.messages import listing, quote
 
 
 def add_data_arguments(parser: argparse.ArgumentParser) -> None:
@@ -88,7 +89,7 @@ def _number(name):
         try:
             return float(text)
         except ValueError:
-            raise argparse.ArgumentTypeError(f"{name} must be a number; got {text!r}") from None
+            raise argparse.ArgumentTypeError(f"{name} must be a number; got {quote(text)}") from None
     return parse
 
 
@@ -98,7 +99,7 @@ def load_data(args) -> Dataset:
         features = [part.strip() for part in args.features.split(",")]
         if len(features) != 2 or not all(features):
             raise InputError(f"--features takes two column names separated by a comma; "
-                             f"got {args.features!r}")
+                             f"got {quote(args.features)}")
     dataset = load_table(args.data, features=features, label=args.label,
                          positive=args.positive, drop_incomplete=args.drop_incomplete)
     if dataset.skipped:
@@ -113,17 +114,17 @@ def config_from_args(args, dataset: Dataset) -> FitConfig:
         label, _, factor = item.rpartition("=")
         if not label:
             raise InputError(f"--weight takes LABEL=FACTOR, for example --weight bad=2; "
-                             f"got {item!r}")
+                             f"got {quote(item)}")
         sign = next((s for value, s in dataset.label_mapping.items()
                      if str(value) == label or _same(value, label)), None)
         if sign is None:
-            known = ", ".join(repr(str(v)) for v in dataset.label_mapping)
-            raise InputError(f"--weight names label {label!r}, which is not in the data "
+            known = listing(str(v) for v in dataset.label_mapping)
+            raise InputError(f"--weight names label {quote(label)}, which is not in the data "
                              f"(labels: {known})")
         try:
             weights[sign] = float(factor)
         except ValueError:
-            raise InputError(f"the class weight in --weight {item!r} must be a number") from None
+            raise InputError(f"the class weight in --weight {quote(item)} must be a number") from None
     settings = {name: getattr(args, name) for name in kernels.parameter_names()}
     for name, value in settings.items():
         if PARAMETERS[name].kind is int and float(value).is_integer():

@@ -2,12 +2,13 @@
 
 from __future__ import annotations
 
-import json
 import math
 import sys
 
 from solver import CAUTION_LINE, INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, fit
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
+from cli.fit_evidence import add_evidence_arguments, evidence_for
+from cli.outputs import check_outputs, print_json, write_outputs
 
 
 def add_arguments(parser) -> None:
@@ -17,16 +18,20 @@ def add_arguments(parser) -> None:
                         help="print exactly one JSON object on stdout instead of a summary")
     parser.add_argument("--save", metavar="EXPERIMENT.json",
                         help="also write a reproducible experiment file")
+    add_evidence_arguments(parser)
 
 
 def run(args) -> int:
+    outputs = check_outputs([args.data, args.test], {"--save": args.save})
     dataset = load_data(args)
     config = config_from_args(args, dataset)
     print(f"labels: {dataset.mapping_text()}", file=sys.stderr)
     result = fit(dataset.X, dataset.y, config)
-    if args.save:
+    evidence = evidence_for(args, dataset, result)
+    if outputs:
         from solver.files import save_experiment  # the file layer
-        save_experiment(args.save, dataset, result)
+        write_outputs([(outputs[0], lambda path: save_experiment(
+            path, dataset, result, heldout=evidence.heldout_section()))])
     if args.json:
         data = result.to_dict()
         data["functional_margin"] = result.functional_margin.tolist()   # y_i f(x_i)
@@ -35,10 +40,10 @@ def run(args) -> int:
             data["projection"] = result.projection.tolist()               # w.x_i / |w|
         data["features"] = list(dataset.feature_names)
         data["label_mapping"] = {str(k): v for k, v in dataset.label_mapping.items()}
-        json.dump(data, sys.stdout)
-        sys.stdout.write("\n")
+        data.update(evidence.to_json())
+        print_json(data)
     else:
-        print(summary_text(result, dataset))
+        print(summary_text(result, dataset) + evidence.text())
     print(CAUTION_LINE, file=sys.stderr)
     return 0
 

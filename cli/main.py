@@ -8,9 +8,13 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import os
 import sys
 
 from solver import SlacklineError
+from solver.messages import MESSAGE_LIMIT, one_line
+
+PROBLEMS_SHOWN = 20    # problems of an invalid file listed below the message, one per line
 
 # subcommand -> (module, one-line help); each module has add_arguments(parser)
 # and run(args) -> exit status.
@@ -20,11 +24,20 @@ COMMANDS = {
     "export": ("cli.export", "write an experiment's points table or classifier file"),
     "sweep": ("cli.sweep", "fit across a range of C with cross-validation"),
     "render": ("cli.render", "draw an experiment's canvas to a PNG/SVG file, no window"),
+    "predict": ("cli.predict", "apply an experiment's classifier to new rows of a CSV/TSV file"),
 }
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse, but a bad option is one bounded line, not the usage block."""
+
+    def error(self, message):
+        text = one_line(f"{self.prog}: {message} (see {self.prog} --help)", MESSAGE_LIMIT)
+        self.exit(2, text + "\n")
+
+
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="slackline",
         description="Fit, explain and export two-feature support vector machines. "
                     "Without a command, opens the workbench window.")
@@ -56,13 +69,42 @@ def main(argv=None) -> int:
     try:
         return int(args.run(args) or 0)
     except SlacklineError as exc:
-        print(f"slackline {args.command}: {exc}", file=sys.stderr)
-        for problem in getattr(exc, "problems", []) or []:
-            print(f"  {problem}", file=sys.stderr)
+        _say(f"slackline {args.command}: {exc}", getattr(exc, "problems", []) or [])
         return 2
     except KeyboardInterrupt:
         print("interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:
+        return _closed_stdout()
+    except OSError as exc:   # a file or stream that failed under us
+        where = f" ({exc.filename})" if exc.filename else ""
+        _say(f"slackline {args.command}: {exc.strerror or exc}{where}; nothing more was written")
+        return 2
+    except Exception as exc:  # the last guard: a bug, said in one line, never a traceback
+        if os.environ.get("SLACKLINE_DEBUG"):
+            raise
+        _say(f"slackline {args.command}: internal error ({type(exc).__name__}: {exc}); "
+             f"please report it with the command and its input (SLACKLINE_DEBUG=1 shows "
+             f"the details)")
+        return 3
+
+
+def _say(message: str, problems=()) -> None:
+    """The message on one bounded line; an invalid file's problems below it, counted."""
+    lines = [one_line(message)] + ["  " + one_line(p) for p in problems[:PROBLEMS_SHOWN]]
+    if len(problems) > PROBLEMS_SHOWN:
+        lines.append(f"  ... and {len(problems) - PROBLEMS_SHOWN} more problems")
+    print("\n".join(lines), file=sys.stderr)
+
+
+def _closed_stdout() -> int:
+    """The reader of our output went away (``| head``): stop quietly, as other tools do."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError):
+        pass
+    return 141
 
 
 if __name__ == "__main__":

@@ -11,7 +11,9 @@ import sys
 from pathlib import Path
 
 from app.canvas.figure import DEFAULT_SIZE, FORMATS, parse_size, save_figure  # no Qt at import
+from cli.outputs import check_outputs, write_outputs
 from solver import InputError
+from solver.messages import quote
 
 GEOMETRY_FORMAT = ".json"
 
@@ -32,8 +34,10 @@ def run(args) -> int:
 
     suffix = Path(args.output).suffix.lower()
     if suffix not in FORMATS + (GEOMETRY_FORMAT,):
-        raise InputError(f"the figure must end in .png or .svg (or .json for its geometry as data); got {args.output!r}")
+        raise InputError(f"the figure must end in .png or .svg (or .json for its geometry as "
+                         f"data); got {quote(args.output)}")
     width, height = parse_size(args.size)
+    outputs = check_outputs([args.experiment], {"-o": args.output})
     experiment = load_experiment(args.experiment)
     dataset = experiment.dataset
     # the stored figures are a record; the picture is drawn from a fresh fit of
@@ -42,13 +46,11 @@ def run(args) -> int:
     if suffix == GEOMETRY_FORMAT:
         from app.canvas.figure_data import figure_json
         from solver.files.atomic import atomic_write_text
-        try:
-            atomic_write_text(args.output, figure_json(result, dataset.feature_names))
-        except OSError as exc:
-            raise InputError(f"could not write {args.output}: {exc.strerror}; check that "
-                             f"the folder exists and is writable") from None
+        text = figure_json(result, dataset.feature_names)
+        write_outputs([(outputs[0], lambda path: atomic_write_text(path, text))])
         print(f"wrote {args.output} (figure geometry)", file=sys.stderr)
         return 0
-    path = save_figure(args.output, dataset, result, width, height)
-    print(f"wrote {path} ({width}x{height})", file=sys.stderr)
+    write_outputs([(outputs[0], lambda path: save_figure(path, dataset, result, width, height,
+                                                         suffix=suffix))])
+    print(f"wrote {args.output} ({width}x{height})", file=sys.stderr)
     return 0

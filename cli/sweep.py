@@ -7,7 +7,6 @@ a terminal, and stays quiet otherwise.
 
 from __future__ import annotations
 
-import json
 import math
 import sys
 
@@ -15,6 +14,11 @@ from solver.study import LEAVE_ONE_OUT
 from solver import InputError
 from solver.study import DEFAULT_FROM, DEFAULT_STEPS, DEFAULT_TO, SweepSettings, run_sweep
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
+from cli.outputs import print_json
+from solver.parameters import PARAMETERS
+
+SEED_LIMIT = 2 ** 32 - 1   # numpy's SeedSequence / scikit-learn's random_state take 0 .. 2**32 - 1
+STEPS_LIMIT = 1000
 
 
 def add_arguments(parser) -> None:
@@ -46,6 +50,7 @@ def run(args) -> int:
     if args.hard:
         raise InputError("a sweep varies C, so it cannot use --hard; drop --hard and set "
                          "the range with --from and --to")
+    _check_options(args)
     settings = SweepSettings(c_from=args.c_from, c_to=args.c_to, steps=args.steps,
                              folds=_folds(args.folds), seed=args.seed)
     dataset = load_data(args)
@@ -60,8 +65,7 @@ def run(args) -> int:
         data["data"] = {"source": dataset.source, "sha256": dataset.sha256,
                         "features": list(dataset.feature_names),
                         "label_mapping": {str(k): v for k, v in dataset.label_mapping.items()}}
-        json.dump(data, sys.stdout, allow_nan=False)
-        sys.stdout.write("\n")
+        print_json(data)
     elif args.csv:
         import pandas as pd
         pd.DataFrame(sweep.rows()).to_csv(sys.stdout, index=False, float_format="%.10g")
@@ -71,6 +75,25 @@ def run(args) -> int:
         print(f"fit failed at C = {failure.C:g} ({failure.where}): {failure.message}",
               file=sys.stderr)
     return 0
+
+
+def _check_options(args) -> None:
+    """What the libraries below would refuse with a traceback, refused here in words."""
+    if not 0 <= args.seed <= SEED_LIMIT:
+        raise InputError(f"--seed must be a whole number from 0 to {SEED_LIMIT}; "
+                         f"got {args.seed}")
+    if args.jobs is not None and args.jobs != -1 and args.jobs < 1:
+        raise InputError(f"--jobs must be 1 or more, or -1 for every core; got {args.jobs}")
+    if args.jobs is not None and args.jobs > 256:
+        raise InputError(f"--jobs is at most 256 parallel jobs; got {args.jobs}")
+    if not 2 <= args.steps <= STEPS_LIMIT:
+        raise InputError(f"--steps must be a whole number from 2 to {STEPS_LIMIT}; "
+                         f"got {args.steps}")
+    for option, value in (("--from", args.c_from), ("--to", args.c_to)):
+        if not (math.isfinite(value) and value > 0):
+            raise InputError(f"{option} must be a positive number; got {value:g}")
+        if PARAMETERS["C"].problem(value) is not None:   # each C of the grid is a fit's C
+            raise InputError(f"{option} must be {PARAMETERS['C'].describe()}; got {value:g}")
 
 
 def _run_with_progress(dataset, config, settings, jobs):

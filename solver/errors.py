@@ -5,7 +5,11 @@ Every message names the offending value and says what to do about it.
 
 
 class SlacklineError(ValueError):
-    """Base of every error Slackline raises on purpose."""
+    """Base of every error Slackline raises on purpose; its message is one bounded line."""
+
+    def __init__(self, message="", *args):
+        from solver.messages import one_line
+        super().__init__(one_line(message), *args)
 
 
 class InputError(SlacklineError):
@@ -32,5 +36,6 @@ class FileFormatError(SlacklineError):
     """A data or experiment file that cannot be read; lists every problem."""
 
     def __init__(self, message, problems=()):
+        from solver.messages import one_line
         super().__init__(message)
-        self.problems = list(problems)
+        self.problems = [one_line(p) for p in problems]

@@ -7,9 +7,9 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from solver import scaling
+from solver import limits, scaling
 from solver.config import FitConfig
-from solver.errors import ConvergenceError, InputError
+from solver.errors import ConvergenceError, InputError, SlacklineError
 from solver.model import DecisionModel
 from solver.qp.primal_solver import solve_primal
 from solver.qp.dual_solver import solve_dual
@@ -50,6 +50,7 @@ def validate_points(X, y) -> tuple[np.ndarray, np.ndarray]:
     if (X == X[0]).all():
         raise InputError("all points sit at the same coordinates; no boundary can be "
                          "drawn between them — move or add points")
+    limits.check_coordinates(X)
     return X, y.astype(int)
 
 
@@ -60,6 +61,18 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
     result; kernel fits use its decision function to guess the working set.
     Raises a SlacklineError subclass on anything it cannot fit.
     """
+    try:
+        return _fit(X, y, config, warm_start)
+    except SlacklineError:
+        raise
+    except (ArithmeticError, ValueError, np.linalg.LinAlgError) as exc:
+        # within solver.limits this is not expected; outside them a traceback helps nobody
+        raise ConvergenceError(f"the solver could not work with these numbers "
+                               f"({type(exc).__name__}: {exc}); scale the features "
+                               f"(zscore) or choose C nearer 1") from None
+
+
+def _fit(X, y, config, warm_start) -> FitResult:
     config = config or FitConfig()
     if not isinstance(config, FitConfig):
         raise InputError(f"config must be a FitConfig; got {type(config).__name__}")
@@ -68,6 +81,7 @@ def fit(X, y, config: FitConfig | None = None, warm_start: FitResult | None = No
     shift, scale = scaling.scaling_parameters(X, config.scaling)
     Xs = scaling.apply(X, shift, scale)
     penalties = np.array([config.penalty(sign) for sign in (1, -1)])[(y < 0).astype(int)]
+    limits.check_problem_scale(Xs, config, penalties)
     solve = _solve_primal if config.uses_feature_map else _solve_dual
     solved = solve(X, Xs, y, penalties, config, shift, scale, warm_start)
     return _result(X, y, penalties, config, solved, time.perf_counter() - start)
@@ -153,6 +167,7 @@ def _result(X, y, penalties, config, solved: _Solved, seconds: float) -> FitResu
                        kkt=kkt, iterations=solved.iterations, seconds=seconds,
                        converged=converged, solver_status=solved.status, rounds=solved.rounds,
                        working_set=solved.working_set)
+    limits.check_figures(result.w, result.b, decision)
     if not converged:
         raise ConvergenceError(
             f"the solver stopped after {solved.iterations} iterations without reaching its "

@@ -32,6 +32,8 @@ class Parameter:
         ``also`` is appended to the allowed range: " or 'hard'" for C.
         """
         number = isinstance(value, (int, float)) and not isinstance(value, bool)
+        if number and isinstance(value, int) and abs(value) > 1e300:
+            number = False     # an int beyond any float (math.isfinite would overflow)
         if self.kind is int:
             if number and float(value).is_integer() and self.low <= value <= self.high:
                 return None
@@ -43,6 +45,9 @@ class Parameter:
         return f"{self.name} must be {self.describe()}{also}; got {value!r}"
 
     def describe(self) -> str:
+        if not self.low_open and math.isfinite(self.high):
+            kind = "a positive number" if self.low > 0 else "a number"
+            return f"{kind} from {self.low:g} to {self.high:g}"
         if self.low_open and self.low == 0:
             lower = "a positive number"
         else:
@@ -51,22 +56,23 @@ class Parameter:
 
 
 PARAMETERS: dict[str, Parameter] = {p.name: p for p in (
-    Parameter("C", float, 1.0, 0.0, math.inf, low_open=True, label="C",
+    # ranges of C, gamma, offset and the weights: solver.limits says where they come from
+    Parameter("C", float, 1.0, 1e-9, 1e12, label="C",
               help="regularisation strength: the price of one unit of slack. A smaller C "
                    "allows more slack and gives a wider, simpler margin"),
-    Parameter("gamma", float, 0.5, 0.0, math.inf, low_open=True, label="gamma",
+    Parameter("gamma", float, 0.5, 1e-9, 1e9, label="gamma",
               help="kernel width: a larger gamma makes each point's influence more local "
                    "(polynomial: the scale of x.x' inside the kernel)", step=0.1),
     Parameter("degree", int, 3, 1, 10, label="degree",
               help="polynomial degree d in (gamma x.x' + offset)^d, a whole number 1..10",
               step=1, decimals=0),
-    Parameter("offset", float, 1.0, 0.0, math.inf, label="offset",
+    Parameter("offset", float, 1.0, 0.0, 1e9, label="offset",
               help="the polynomial offset r in (gamma x.x' + r)^d, >= 0; with 0 only the "
                    "terms of exactly degree d remain", step=0.5, decimals=3),
-    Parameter("weight_positive", float, 1.0, 0.0, math.inf, low_open=True,
+    Parameter("weight_positive", float, 1.0, 1e-6, 1e6,
               label="+1 weight", help="class weight of the +1 class: its points' penalty is "
                                       "C times this factor", decimals=3),
-    Parameter("weight_negative", float, 1.0, 0.0, math.inf, low_open=True,
+    Parameter("weight_negative", float, 1.0, 1e-6, 1e6,
               label="\u22121 weight", help="class weight of the \u22121 class: its points' "
                                            "penalty is C times this factor", decimals=3),
 )}

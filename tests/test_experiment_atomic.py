@@ -11,6 +11,7 @@ import numpy as np
 import pytest
 
 from solver import FitConfig, fit
+from solver.errors import FileFormatError
 from solver.files.atomic import atomic_open
 from solver.files.dataset import Dataset
 from solver.files.experiment import load_experiment, save_experiment
@@ -85,7 +86,7 @@ def test_a_failure_before_the_swap_keeps_the_old_file_and_cleans_up(old_experime
         raise OSError(28, "No space left on device")
 
     monkeypatch.setattr(os, "fsync", broken_fsync)
-    with pytest.raises(OSError, match="No space left"):
+    with pytest.raises(FileFormatError, match="No space left"):
         save_experiment(old_experiment, Dataset.from_points(X, Y), None, note="new",
                         config=FitConfig())
     assert old_experiment.read_bytes() == before

@@ -36,6 +36,7 @@ def window(qtbot, temporary_settings):
     qtbot.waitExposed(win)
     yield win
     win.recovery.timer.stop()
+    win.evidence_actions.evidence.shutdown()     # an influence ranking still under way
     win.document.shutdown()
 
 

@@ -76,10 +76,12 @@ def draw_result(dataset, result, width: int, height: int, pinned=None):
     return image
 
 
-def save_figure(path, dataset, result, width: int, height: int, pinned=None) -> Path:
-    """Write the picture to ``path``: PNG or SVG, chosen by the extension."""
+def save_figure(path, dataset, result, width: int, height: int, pinned=None,
+                suffix: str | None = None) -> Path:
+    """Write the picture to ``path``: PNG or SVG, chosen by ``suffix`` (default: the
+    extension; a staged temporary file has none of its own)."""
     path = Path(path)
-    suffix = path.suffix.lower()
+    suffix = (suffix or path.suffix).lower()
     if suffix not in FORMATS:
         raise InputError(f"the figure must end in .png or .svg; got {path.name!r}")
     ensure_application()
@@ -87,7 +89,7 @@ def save_figure(path, dataset, result, width: int, height: int, pinned=None) -> 
     try:
         if suffix == ".svg":
             write_svg(widget, path)
-        elif not widget.grab().toImage().save(str(path)):
+        elif not widget.grab().toImage().save(str(path), "PNG"):
             raise InputError(f"could not write {path}; check that the folder exists and "
                              f"is writable")
     finally:
@@ -109,11 +111,21 @@ def write_svg(widget, path) -> None:
     generator.setSize(QSize(widget.width(), widget.height()))
     generator.setViewBox(QRect(0, 0, widget.width(), widget.height()))
     generator.setTitle("Slackline fit")
-    painter = QPainter(generator)
+    painter = QPainter()
+    if not painter.begin(generator):   # QSvgGenerator could not open the file
+        raise InputError(f"could not write {path}; check that the folder exists and is "
+                         f"writable")
     try:
         widget.render(painter)
     finally:
         painter.end()
+    try:
+        written = os.path.getsize(path)
+    except OSError:
+        written = 0
+    if written == 0:
+        raise InputError(f"nothing was written to {path}; check that the folder is "
+                         f"writable and has free space")
 
 
 def parse_size(text: str) -> tuple[int, int]:

@@ -18,7 +18,7 @@ from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPainter, QPdfWriter, 
 from solver.study import compare
 from solver.study import points_fingerprint
 from solver import InputError
-from solver.study import summary
+from solver.study import heldout_sentence, summary
 from solver import CAUTIONS, STATUS_TEXT, STATUSES
 
 LAYOUT_WIDTH = 1000          # logical width the page is laid out at, in pixels
@@ -28,7 +28,7 @@ PICTURE = (470, 360)
 
 def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=None,
                   cv_after=None, title: str = "Support vector machine fit", note=None,
-                  edited: bool = False) -> Path:
+                  edited: bool = False, heldout=None) -> Path:
     """Write the one-page report to ``path`` (.pdf or .png) and return the path.
 
     ``note`` is the experiment's note; ``edited`` says the points were changed
@@ -42,7 +42,19 @@ def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=Non
     from app.canvas.figure import ensure_application
     ensure_application()
     document = build_document(dataset, current, pinned, sweep, cv_before, cv_after, title,
-                              note=note, edited=edited)
+                              note=note, edited=edited, heldout=heldout)
+    from solver.files.atomic import commit, stage
+    staged = stage(path)      # written beside the target, swapped in only when complete
+    try:
+        _write_report(staged, suffix, document, title)
+    except BaseException:
+        staged.unlink(missing_ok=True)
+        raise
+    commit([(staged, path)])
+    return path
+
+
+def _write_report(path: Path, suffix: str, document: QTextDocument, title: str) -> None:
     if suffix == ".pdf":
         writer = QPdfWriter(str(path))
         writer.setResolution(150)
@@ -50,7 +62,10 @@ def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=Non
                                          QMarginsF(12, 12, 12, 12)))
         writer.setTitle(title)
         writer.setCreator("Slackline")
-        painter = QPainter(writer)
+        painter = QPainter()
+        if not painter.begin(writer):
+            raise InputError(f"could not write the report {path.name}; check that its folder "
+                             f"is writable")
         _paint_fitted(painter, document, writer.width(), writer.height())
         painter.end()
     else:
@@ -61,10 +76,9 @@ def export_report(path, dataset, current, pinned=None, sweep=None, cv_before=Non
         painter.translate(margin, margin)
         _paint_fitted(painter, document, PNG_SIZE[0] - 2 * margin, PNG_SIZE[1] - 2 * margin)
         painter.end()
-        if not image.save(str(path)):
+        if not image.save(str(path), "PNG"):
             raise InputError(f"could not write {path}; check that the folder exists and "
                              f"is writable")
-    return path
 
 
 def _paint_fitted(painter: QPainter, document: QTextDocument, width: float, height: float):
@@ -81,7 +95,8 @@ def _paint_fitted(painter: QPainter, document: QTextDocument, width: float, heig
 
 def build_document(dataset, current, pinned=None, sweep=None, cv_before=None, cv_after=None,
                    title="Support vector machine fit", note=None,
-                   edited=False) -> QTextDocument:
+                   edited=False, heldout=None) -> QTextDocument:
+    """``heldout``: the current fit's Confusion on held-out points, if any."""
     from app.canvas.figure import draw_result
     doc = QTextDocument()
     doc.setPageSize(QSizeF(LAYOUT_WIDTH, 100000))
@@ -107,6 +122,9 @@ def build_document(dataset, current, pinned=None, sweep=None, cv_before=None, cv
         parts.append(_comparison_table(comparison))
     else:
         parts.append(f"<p>{_e(_single_fit_line(current))}</p>")
+    if heldout is not None:
+        parts.append(f"<p><b>Held-out check.</b> "
+                     f"{_e(heldout_sentence(heldout, current.training_error))}</p>")
     if sweep is not None and len(sweep.C):
         from app.panels.sweep_chart import chart_image
         doc.addResource(QTextDocument.ImageResource, QUrl("image://sweep"),

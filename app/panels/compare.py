@@ -13,11 +13,12 @@ from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QHeaderView, QLabel, QM
 from solver.study import compare
 from solver.study import LEAVE_ONE_OUT, cross_validate, points_fingerprint
 from solver import SlacklineError
-from solver.study import summary
+from solver.study import heldout_sentence, summary
 from solver import STATUS_TEXT
 
 from app.document.background import BackgroundTask
 from app.document.document import PINNED, RESULT
+from app.document.evidence import evidence_of
 from app.document.sweep_store import sweep_store
 from app.document.provenance import provenance
 from app.panels.points_table import SHORT_STATUS
@@ -110,6 +111,9 @@ class ComparePanel(QWidget):
         text = summary(self.comparison)
         if document.result_is_stale:
             text += " (The current fit is out of date: the last solve failed.)"
+        counts = evidence_of(document).counts
+        if counts is not None:
+            text += " " + heldout_sentence(counts, current.training_error)
         self.summary.setText(text)
         self._fill_table()
         self._fill_changes()
@@ -204,7 +208,8 @@ class ComparePanel(QWidget):
             sweep = self.store.current_for(current.X, current.y, current.config)
         return export_report(path, document.dataset(), current, pinned, sweep,
                              self.cv_for(pinned), self.cv_for(current), note=document.note,
-                             edited=provenance(document).edited_since_import())
+                             edited=provenance(document).edited_since_import(),
+                             heldout=evidence_of(document).counts)
 
 
 def _compact(table):

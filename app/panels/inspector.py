@@ -88,4 +88,12 @@ class Inspector(QWidget):
         self.values["slack"].setText(_g(result.slack[i]))
         status = str(result.status[i])
         self.values["status"].setText(STATUS_TEXT[status])
-        self.reading.setText(READING[status])
+        self.reading.setText(READING[status] + _influence_sentence(doc, i))
+
+
+def _influence_sentence(document, i) -> str:
+    """'; leaving this point out rotates the boundary by ...' once the ranking is in."""
+    from app.document.evidence import evidence_of
+    influence = evidence_of(document).influence
+    entry = None if influence is None else influence.of(i)
+    return "" if entry is None else f". {entry.sentence()[0].upper()}{entry.sentence()[1:]}"

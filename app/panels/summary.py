@@ -20,6 +20,11 @@ ROWS = (   # (key, title, tooltip)
                                          "band / on the wrong side of the boundary"),
     ("error", "training error", "share of the training points on the wrong side; not an "
                                 "estimate of the error on new data"),
+    ("heldout", "held-out error", "share of the held-out points (kept out of the fit) on "
+                                  "the wrong side: Edit \u2192 Hold out selected points, or "
+                                  "File \u2192 Load held-out points"),
+    ("confusion", "TP / FP / TN / FN", "held-out confusion counts: true positive, false "
+                                       "positive, true negative, false negative"),
     ("regularisation", "\u00bd|w|\u00b2", "the regularisation term of the objective"),
     ("penalty", "\u03a3 C\u1d62\u03be\u1d62", "the slack penalty term of the objective"),
     ("gap", "duality gap", "primal minus dual objective: how far the solver is from the "
@@ -62,6 +67,11 @@ class Summary(QWidget):
     def text(self, key: str) -> str:
         return self.values[key].text()
 
+    def _heldout(self, set_):
+        error, counts = _heldout_lines(self.document)
+        set_("heldout", error)
+        set_("confusion", counts)
+
     def _document_changed(self, changes):
         if changes & {RESULT, METADATA}:
             self.refresh()
@@ -87,6 +97,7 @@ class Summary(QWidget):
                           f"{result.count(MISCLASSIFIED)}")
         wrong = int(round(result.training_error * len(result.y)))
         set_("error", f"{result.training_error:.1%}  ({wrong} of {len(result.y)})")
+        self._heldout(set_)
         set_("regularisation", number(result.half_norm_w2))
         set_("penalty", number(result.penalty_term))
         set_("gap", f"{result.duality_gap:.2e}")
@@ -98,6 +109,18 @@ class Summary(QWidget):
         else:
             C = "hard margin" if result.config.hard_margin else f"C = {number(result.config.C)}"
             self.values["state"].setText(f"current: {result.config.kernel}, {C}")
+
+
+def _heldout_lines(document):
+    """(held-out error, confusion counts) texts from the document's evidence, if any."""
+    from app.document.evidence import evidence_of
+    counts = evidence_of(document).counts
+    if counts is None:
+        return "\u2014 (none held out)", "\u2014"
+    wrong = counts.false_positive + counts.false_negative
+    return (f"{counts.error:.1%}  ({wrong} of {counts.rows})",
+            f"{counts.true_positive} / {counts.false_positive} / {counts.true_negative} / "
+            f"{counts.false_negative}  (+1 = {counts.positive_label})")
 
 
 def _selectable():

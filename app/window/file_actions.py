@@ -13,7 +13,11 @@ from PySide6.QtCore import QObject, QSettings, Signal
 from PySide6.QtWidgets import QFileDialog, QMessageBox
 
 from solver import SlacklineError
+from solver.files.atomic import FileChangedError
+from app.window.write_guard import ANY, WriteGuard
 from solver.files import TABLE_FILTER, TABLE_SUFFIXES
+
+from app.document.evidence import evidence_of
 
 EXPERIMENT_FILTER = "Slackline experiments (*.json)"
 MAX_RECENT = 8
@@ -25,6 +29,7 @@ class FileActions(QObject):
     def __init__(self, window, document, canvas):
         super().__init__(window)
         self.window, self.document, self.canvas = window, document, canvas
+        self.guard = WriteGuard(window)
 
     # -- prompts -----------------------------------------------------------
     def _error(self, title, exc):
@@ -65,6 +70,7 @@ class FileActions(QObject):
     def new(self):
         if self.confirm_discard():
             self.document.new()
+            evidence_of(self.document).reset()
             self.canvas.fit_view_to_data()
 
     def open(self):
@@ -89,6 +95,8 @@ class FileActions(QObject):
             return False
         self.document.load(experiment.dataset, experiment.config, path=path,
                            note=experiment.note)
+        self.guard.remember(path)
+        evidence_of(self.document).reset(experiment.heldout)
         self.window.match_axes_to_data()
         self._add_recent(path)
         self._remember_folder(path)
@@ -107,6 +115,7 @@ class FileActions(QObject):
         if dialog.exec() != ImportDialog.Accepted or dialog.dataset is None:
             return False
         self.document.replace_points(dialog.dataset, f"import {Path(path).name}")
+        self.guard.remember(path, data=True)
         self.window.match_axes_to_data()
         self._remember_folder(path)
         return True
@@ -128,11 +137,26 @@ class FileActions(QObject):
         doc = self.document
         doc.wait_for_solve(10000)  # save the figures of these very points when they are ready
         result = doc.current_result()
+        if not self.guard.allows(path, doc.path, exporting=False):
+            return False
+        expected = self.guard.expected(path)
         try:
-            save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config)
+            heldout = evidence_of(doc).heldout_section() if result else None
+            try:
+                save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config,
+                                heldout=heldout,
+                                **({} if expected is ANY else {"expect": expected}))
+            except FileChangedError:
+                if not self.guard.confirm(f"{Path(path).name} was changed by another program "
+                                          "since this window read it. Replace it anyway?",
+                                          "File changed on disk"):
+                    raise
+                save_experiment(path, doc.dataset(), result, note=doc.note, config=doc.config,
+                                heldout=heldout)
         except SlacklineError as exc:
             self._error("Cannot save the experiment", exc)
             return False
+        self.guard.remember(path)
         doc.mark_saved(Path(path))
         self._add_recent(path)
         self._remember_folder(path)
@@ -150,16 +174,16 @@ class FileActions(QObject):
                                       f"{self._stem()}.png")
         if not path:
             return False
-        from pyqtgraph.exporters import ImageExporter
-
-        from app.canvas.figure import write_svg
-        plot = self.canvas.getPlotItem()
-        if Path(path).suffix.lower() == ".svg":
-            write_svg(self.canvas, path)
-        else:
-            if not Path(path).suffix:
-                path = f"{path}.png"
-            ImageExporter(plot).export(fileName=str(path))
+        if not Path(path).suffix:
+            path = f"{path}.png"
+        if not self.guard.allows(path, self.document.path, exporting=True):
+            return False
+        from app.window.picture import write_picture
+        try:
+            write_picture(self.canvas, path)
+        except SlacklineError as exc:
+            self._error("Cannot export the picture", exc)
+            return False
         self.window.statusBar().showMessage(f"wrote {Path(path).name}", 5000)
         return True
 
@@ -204,6 +228,8 @@ class FileActions(QObject):
                 "folds": sweep.folds, "seed": sweep.seed}
 
     def _write(self, writer, path, result) -> bool:
+        if not self.guard.allows(path, self.document.path, exporting=True):
+            return False
         try:
             writer(path, self.document.dataset(), result)
         except (SlacklineError, OSError) as exc:

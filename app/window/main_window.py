@@ -13,6 +13,7 @@ from app.dialogs.help_pages import READING, shortcuts_html, show_page
 from app.canvas import geometry
 from app.canvas.canvas import Canvas
 from app.document.document import DIRTY, PATH, Document
+from app.window.evidence_actions import install_evidence
 from app.window.file_actions import FileActions
 from app.document.provenance import provenance
 from app.document.recovery import RecoveryWriter, pending_recovery
@@ -45,6 +46,7 @@ class MainWindow(QMainWindow):
         self.recovery = RecoveryWriter(self.document, self)
         self._build_status_bar()
         self._build_menus()
+        self.evidence_actions = install_evidence(self)   # scored rows, held-out, influence
         apply_tooltips(self)
         self.setAcceptDrops(True)
         self.document.changed.connect(self._document_changed)
@@ -234,6 +236,7 @@ class MainWindow(QMainWindow):
         self.save_settings()
         self.recovery.timer.stop()
         self.recovery.discard()
+        self.evidence_actions.evidence.shutdown()
         self.document.shutdown()
         event.accept()
 

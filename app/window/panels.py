@@ -12,6 +12,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from app.panels.compare import ComparePanel
+from app.panels.influence import InfluencePanel
+from app.panels.scored_rows import ScoredRowsPanel
 from app.panels.controls import Controls
 from app.panels.inspector import Inspector
 from app.panels.note import NoteEditor
@@ -44,6 +46,10 @@ PANELS = (
           "cross-validated error and more against C; click the chart to set C"),
     Panel("compare", "Compare", ComparePanel, "study",
           "the current fit against the pinned one, in numbers and words"),
+    Panel("influence_panel", "Influence", InfluencePanel, "study",
+          "which points hold the boundary: each support vector left out in turn"),
+    Panel("scored_panel", "Scored rows", ScoredRowsPanel, "study",
+          "new rows scored by the current fit (File \u2192 Score data)"),
     Panel("note_editor", "Note", NoteEditor, "study",
           "the experiment's note: saved in the file and printed in the report"),
     Panel("inspector", "Point", Inspector, "inspector"),

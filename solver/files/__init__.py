@@ -11,7 +11,10 @@ from solver.files.experiment import (FORMAT_VERSION, Experiment, content_checksu
                                      experiment_from_dict, experiment_to_dict, json_text,
                                      load_experiment, provenance, save_experiment)
 from solver.files.classifier import classifier_document, write_classifier
-from solver.files.exports import points_table, write_points_csv
+from solver.files.exports import neutralise, points_table, write_points_csv
+from solver.files.heldout_points import HeldOutPoints, heldout_from_section, heldout_section
+from solver.files.new_rows import NewRows, read_new_rows
+from solver.files.scored_table import scored_csv, scored_table, write_scored_csv
 from solver.files.tables import (EXCEL_SUFFIXES, TAB_SUFFIXES, TABLE_FILTER, TABLE_SUFFIXES,
                                  TablePreview, preview_table, read_table)
 
@@ -20,6 +23,8 @@ __all__ = [
     "split_unit", "FORMAT_VERSION", "Experiment", "content_checksum", "experiment_from_dict",
     "experiment_to_dict", "json_text", "load_experiment", "provenance",
     "save_experiment", "classifier_document", "write_classifier", "points_table",
-    "write_points_csv",
+    "write_points_csv", "neutralise", "HeldOutPoints", "heldout_from_section",
+    "heldout_section", "NewRows", "read_new_rows", "scored_csv", "scored_table",
+    "write_scored_csv",
     "EXCEL_SUFFIXES", "TAB_SUFFIXES", "TABLE_FILTER", "TABLE_SUFFIXES", "TablePreview", "preview_table", "read_table",
 ]

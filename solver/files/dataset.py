@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 
 from solver.errors import FileFormatError, InputError
+from solver.messages import clip, listing, quote
 from solver.files.tables import is_numeric_column, preview_table, read_table, to_numbers  # noqa: F401
 
 _UNIT = re.compile(r"^(?P<name>.*\S)\s*\[(?P<unit>[^\[\]]*)\]$")
@@ -62,7 +63,7 @@ class Dataset:
         return next(label for label, s in self.label_mapping.items() if s == sign)
 
     def mapping_text(self) -> str:
-        return ", ".join(f"{label!r} -> {sign:+d}" for label, sign in
+        return ", ".join(f"{quote(label)} -> {sign:+d}" for label, sign in
                          sorted(self.label_mapping.items(), key=lambda kv: -kv[1]))
 
     @classmethod
@@ -100,22 +101,23 @@ def sign_mapping(values, positive=None) -> dict:
     distinct = sorted(set(values), key=lambda v: (str(type(v)), str(v)))
     if len(distinct) != 2:
         counts = pd.Series(values, dtype=object).value_counts()
-        found = ", ".join(f"{k!r} ({v} rows)" for k, v in counts.items())
+        found = listing(counts.items(), 5,
+                        render=lambda kv, limit: f"{quote(kv[0], limit)} ({kv[1]} rows)")
         raise InputError(f"the label column must hold exactly two distinct values; "
                          f"found {len(distinct)}: {found or 'none'}")
     if positive is not None:
         matches = [v for v in distinct if str(v) == str(positive)
                    or _same_number(v, positive)]
         if not matches:
-            raise InputError(f"--positive {positive!r} is not one of the labels "
-                             f"{distinct[0]!r}, {distinct[1]!r}")
+            raise InputError(f"--positive {quote(positive)} is not one of the labels "
+                             f"{quote(distinct[0])}, {quote(distinct[1])}")
         pos = matches[0]
         return {v: (1 if v == pos else -1) for v in distinct}
     numeric = {_as_number(v) for v in distinct}
     if numeric in ({-1.0, 1.0}, {0.0, 1.0}):
         return {v: (1 if _as_number(v) == 1.0 else -1) for v in distinct}
-    raise InputError(f"the labels are {distinct[0]!r} and {distinct[1]!r}; say which one is "
-                     f"the positive class with --positive")
+    raise InputError(f"the labels are {quote(distinct[0])} and {quote(distinct[1])}; say which "
+                     f"one is the positive class with --positive")
 
 
 def split_unit(header: str) -> tuple[str, str]:
@@ -143,15 +145,16 @@ def load_table(path, features=None, label=None, positive=None,
         numeric = [c for c in columns if c != label and is_numeric_column(frame[c], table.delimiter)]
         if len(numeric) < 2:
             raise InputError(f"{name} needs two numeric feature columns besides the label "
-                             f"{label!r}; found {numeric or 'none'} among {columns} — name "
+                             f"{quote(label)}; found {listing(numeric) or 'none'} among "
+                             f"{len(columns)} columns ({listing(columns, 5, 30)}) — name "
                              f"them with --features A,B")
         features = numeric[:2]
     else:
         features = [_column(f, columns, name, "feature") for f in features]
         if len(features) != 2 or features[0] == features[1]:
-            raise InputError(f"give two different feature columns; got {features}")
+            raise InputError(f"give two different feature columns; got {listing(features)}")
     if label in features:
-        raise InputError(f"the column {label!r} cannot be both a feature and the label")
+        raise InputError(f"the column {quote(label)} cannot be both a feature and the label")
 
     values = np.column_stack([to_numbers(frame[f], table.delimiter) for f in features])
     missing_label = frame[label].isna().to_numpy()
@@ -186,7 +189,8 @@ def _column(wanted, columns, name, role) -> str:
     for column in columns:
         if split_unit(column)[0] == wanted:
             return column
-    raise InputError(f"no {role} column {wanted!r} in {name}; its columns are {columns}")
+    raise InputError(f"no {role} column {quote(wanted)} in {name}; its columns are "
+                     f"[{listing(columns, 10, 30)}]")
 
 
 def _labels(column: pd.Series) -> list:
@@ -207,7 +211,7 @@ def _row_problems(frame, values, missing_label, bad, lines, features, label) -> 
             if not np.isfinite(values[index, k]):
                 raw = frame[feature].iloc[index]
                 reasons.append(f"{feature} is missing" if pd.isna(raw)
-                               else f"{feature} is {str(raw)!r}, not a number")
+                               else f"{clip(feature, 30)} is {quote(str(raw))}, not a number")
         if missing_label[index]:
             reasons.append(f"{label} is missing")
         problems.append(f"line {lines[index]}: {'; '.join(reasons)}")

@@ -26,7 +26,10 @@ from solver.config import FitConfig
 from solver.files.dataset import Dataset
 from solver.errors import FileFormatError, InputError
 from solver.files.migration import CURRENT_VERSION, migrate
+from solver.files.consistency import consistency_problems, label_key as _key
 from solver.files.schema_check import cap, non_finite_paths, schema_problems, short
+from solver.files.tables import require_regular_file
+from solver.files.untrusted import parse_untrusted
 
 FORMAT_NAME = "slackline-experiment"
 FORMAT_VERSION = CURRENT_VERSION
@@ -41,10 +44,12 @@ class Experiment:
     written: dict                # provenance: at, slackline, python, numpy, cvxopt, platform
     format_version: int = FORMAT_VERSION   # as found in the file, before migration
     checksum: str | None = None
+    heldout: dict | None = None  # the stored held-out section (heldout_points), if any
 
 
 # -- writing -------------------------------------------------------------------
-def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=None) -> dict:
+def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=None,
+                       heldout=None) -> dict:
     """The complete document (checksum included) for ``dataset`` fitted with ``config``."""
     if not isinstance(dataset, Dataset):
         raise InputError(f"dataset must be a Dataset; got {type(dataset).__name__}")
@@ -88,16 +93,23 @@ def experiment_to_dict(dataset: Dataset, config: FitConfig, result=None, note=No
         "config": config.to_dict(),
         "results": None if result is None else result.to_dict(),
     }
+    if heldout is not None:          # a heldout_points.heldout_section(...)
+        document["heldout"] = heldout
     document["checksum"] = {"algorithm": "sha256", "value": content_checksum(document)}
     return document
 
 
-def save_experiment(path, dataset: Dataset, result, note=None, config=None) -> Path:
-    """Write ``dataset`` with ``result`` (or, unfitted, with ``config``) to ``path`` atomically."""
+def save_experiment(path, dataset: Dataset, result, note=None, config=None,
+                    heldout=None, **write_options) -> Path:
+    """Write ``dataset`` with ``result`` (or, unfitted, with ``config``) to ``path`` atomically.
+
+    ``heldout``: a held-out section (solver.files.heldout_points), stored beside the fit.
+    ``write_options`` go to atomic_write_text (``expect``: what must still be on disk).
+    """
     if config is None:
         config = result.config if result is not None else FitConfig()
-    document = experiment_to_dict(dataset, config, result, note=note)
-    atomic_write_text(path, json_text(document))
+    document = experiment_to_dict(dataset, config, result, note=note, heldout=heldout)
+    atomic_write_text(path, json_text(document), **write_options)
     return Path(path)
 
 
@@ -119,7 +131,7 @@ def content_checksum(document: dict) -> str:
 # -- reading -------------------------------------------------------------------
 def load_experiment(path) -> Experiment:
     """Read, migrate, validate and check an experiment file; FileFormatError otherwise."""
-    path = Path(path)
+    path = require_regular_file(path)
     try:
         raw = path.read_bytes()
     except OSError as exc:
@@ -132,7 +144,9 @@ def load_experiment(path) -> Experiment:
     if not text.strip():
         raise FileFormatError(f"{path.name} is empty; an experiment file holds one JSON object")
     try:
-        data = json.loads(text, parse_constant=_reject_constant)
+        data = parse_untrusted(text, path.name)
+    except FileFormatError:
+        raise
     except json.JSONDecodeError as exc:
         hint = " (the file looks cut short)" if exc.pos >= len(text.rstrip()) else ""
         raise FileFormatError(f"{path.name} is not valid JSON: {exc.msg} at line {exc.lineno}, "
@@ -167,7 +181,7 @@ def experiment_from_dict(data, name: str = "the experiment") -> Experiment:
     except RecursionError:
         raise FileFormatError(f"{name} is nested too deeply to be an experiment") from None
     if not problems:
-        problems = _consistency_problems(migrated)
+        problems = consistency_problems(migrated)
     if not problems:
         problems = _checksum_problems(migrated)
     if problems:
@@ -196,40 +210,8 @@ def _build(document: dict, found_version) -> Experiment:
                       written=dict(document["written"]),
                       format_version=found_version if isinstance(found_version, int)
                       else FORMAT_VERSION,
-                      checksum=document["checksum"]["value"])
-
-
-def _consistency_problems(document: dict) -> list[str]:
-    """What the schema cannot say: labels that match the mapping, arrays one per point."""
-    problems = []
-    mapping = document["data"]["label_mapping"]
-    known = [m["label"] for m in mapping]
-    if sorted(m["sign"] for m in mapping) != [-1, 1]:
-        problems.append("/data/label_mapping: expected one label with sign 1 and one with "
-                        f"sign -1; got signs {[m['sign'] for m in mapping]}")
-    if _key(known[0]) == _key(known[1]):
-        problems.append(f"/data/label_mapping: both entries name the label {short(known[0])}")
-    keys = {_key(k) for k in known}
-    for i, point in enumerate(document["points"]):
-        if _key(point["label"]) not in keys:
-            problems.append(f"/points/{i}/label: expected one of "
-                            f"{', '.join(short(k) for k in known)} (the labels in "
-                            f"/data/label_mapping); got {short(point['label'])}")
-    try:
-        FitConfig.from_dict(document["config"])
-    except (InputError, TypeError) as exc:
-        problems.append(f"/config: {exc}")
-    results, n = document["results"], len(document["points"])
-    if results is not None:
-        for key in ("alpha", "slack", "decision", "status"):
-            if len(results[key]) != n:
-                problems.append(f"/results/{key}: expected {n} entries, one per point; "
-                                f"got {len(results[key])}")
-        for j, index in enumerate(results["support"]):
-            if index >= n:
-                problems.append(f"/results/support/{j}: point index {index} is out of range "
-                                f"(there are {n} points, numbered from 0)")
-    return cap(problems)
+                      checksum=document["checksum"]["value"],
+                      heldout=document.get("heldout"))
 
 
 def _sealed_checksum_problems(document: dict) -> list[str]:
@@ -276,19 +258,8 @@ def _label(value):
     raise InputError(f"labels must be text, numbers or true/false to be saved; got {value!r}")
 
 
-def _key(label):
-    """Labels compare by value: 1 and 1.0 are the same label (as in the source table)."""
-    if isinstance(label, float) and label.is_integer():
-        return int(label)
-    return label
-
-
 def _count(problems: list[str]) -> str:
     return "1 problem" if len(problems) == 1 else f"{len(problems)} problems"
-
-
-def _reject_constant(name: str):
-    raise ValueError(f"{name} is not a JSON number; write null or a finite number")
 
 
 _LINE = json.JSONEncoder(ensure_ascii=False, allow_nan=False, separators=(", ", ": "))

@@ -14,6 +14,8 @@ from __future__ import annotations
 import csv
 import hashlib
 import io
+import os
+import stat
 import warnings
 from dataclasses import dataclass
 from pathlib import Path
@@ -22,6 +24,7 @@ import numpy as np
 import pandas as pd
 
 from solver.errors import FileFormatError
+from solver.messages import path_text, quote
 
 TAB_SUFFIXES = (".tsv", ".tab")
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
@@ -51,9 +54,25 @@ class TablePreview:
     delimiter: str | None
 
 
+def require_regular_file(path) -> Path:
+    """``path`` if it names a regular file; a pipe, device or folder is refused up
+    front (opening a named pipe with no writer would wait for ever)."""
+    path = Path(path)
+    try:
+        mode = os.stat(path).st_mode
+    except OSError as exc:
+        raise FileFormatError(f"cannot read {path_text(path)}: {exc.strerror or exc}") from None
+    if stat.S_ISDIR(mode):
+        raise FileFormatError(f"{path_text(path)} is a folder; give the name of a file in it")
+    if not stat.S_ISREG(mode):
+        raise FileFormatError(f"{path_text(path)} is not a regular file (a pipe, socket or "
+                              f"device); save the data to a file and give its name")
+    return path
+
+
 def read_table(path, nrows: int | None = None) -> RawTable:
     """Read ``path`` into a RawTable, or raise FileFormatError saying why not."""
-    path = Path(path)
+    path = require_regular_file(path)
     if path.suffix.lower() in EXCEL_SUFFIXES:
         return _read_workbook(path, nrows)
     try:
@@ -167,7 +186,7 @@ def _column_names(header: list[str], name: str) -> list[str]:
             names.append(f"\0{position}")                # checked once the values are known
             continue
         if text in seen:
-            raise FileFormatError(f"the header row of {name} names column {text!r} twice "
+            raise FileFormatError(f"the header row of {name} names column {quote(text)} twice "
                                   f"(columns {seen[text]} and {position}); give each column "
                                   "its own name")
         seen[text] = position

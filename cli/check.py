@@ -45,7 +45,7 @@ def run(args) -> int:
         return 1
     fresh = result.to_dict()
     comparisons = agreement(stored, fresh, np.asarray(result.penalties))
-    if experiment.heldout is not None:
+    if experiment.heldout is not None:       # stored held-out points: solver.study.heldout
         points = heldout_from_section(experiment.heldout, dataset.label_mapping)
         comparisons += heldout_agreement(experiment.heldout, points, dataset.label_mapping,
                                          result)

@@ -32,6 +32,7 @@ class Evidence:
     scores: Scores | None = None
     counts: Confusion | None = None
     influence: Influence | None = None
+    source_lines: tuple = ()        # each training point's line in its file
 
     def heldout_section(self) -> dict | None:
         if self.heldout is None:
@@ -58,7 +59,7 @@ class Evidence:
                          f" wrong); close calls (|f| < 1): {self.scores.close_calls}")
             lines.extend("    " + line for line in counts.lines())
         if self.influence is not None:
-            lines.extend(self.influence.lines())
+            lines.extend(self.influence.lines(source_lines=self.source_lines))
         return "".join("\n" + line for line in lines)
 
 
@@ -77,4 +78,5 @@ def evidence_for(args, dataset, result) -> Evidence:
     if getattr(args, "influence", False):
         influence = influence_of_support_vectors(
             result, heldout=None if heldout is None else heldout.X)
-    return Evidence(heldout=heldout, scores=scores, counts=counts, influence=influence)
+    return Evidence(heldout=heldout, scores=scores, counts=counts, influence=influence,
+                    source_lines=tuple(dataset.rows))

@@ -8,13 +8,14 @@ counts on these rows.  The classifier is the one stored in the experiment
 
 from __future__ import annotations
 
-import json
+import io
 import sys
+from pathlib import Path
 
 from solver import CAUTION_LINE, InputError
-from solver.files import atomic_write_text, load_experiment, read_new_rows, scored_csv
+from solver.files import load_experiment, read_new_rows, scored_csv
 from solver.study import Classifier, confusion, score
-from cli.evidence_io import refuse_overwriting_inputs
+from cli.outputs import check_outputs, print_json, write_outputs
 
 
 def add_arguments(parser) -> None:
@@ -33,8 +34,7 @@ def add_arguments(parser) -> None:
 
 
 def run(args) -> int:
-    if args.output:
-        refuse_overwriting_inputs(args.output, [args.experiment, args.data])
+    outputs = check_outputs([args.experiment, args.data], {"-o": args.output})
     experiment = load_experiment(args.experiment)
     if experiment.results is None:
         raise InputError(f"{args.experiment} holds no fitted classifier (it was saved before "
@@ -48,13 +48,15 @@ def run(args) -> int:
     counts = None if rows.signs is None else confusion(rows.signs, scores.signs,
                                                        dataset.label_mapping)
     if args.json:
-        text = json.dumps(as_json(rows, scores, counts, dataset), allow_nan=False) + "\n"
+        stream = io.StringIO()
+        print_json(as_json(rows, scores, counts, dataset), stream)
+        text = stream.getvalue()
     elif args.csv:
         text = as_csv(rows, scores, dataset)
     else:
         text = as_text(rows, scores, counts, dataset, args.experiment)
-    if args.output:
-        atomic_write_text(args.output, text)
+    if outputs:
+        write_outputs([(outputs[0], lambda path: Path(path).write_text(text, encoding="utf-8"))])
         print(f"wrote {len(rows)} scored rows to {args.output}", file=sys.stderr)
     else:
         sys.stdout.write(text)

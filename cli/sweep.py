@@ -15,6 +15,7 @@ from solver import InputError
 from solver.study import DEFAULT_FROM, DEFAULT_STEPS, DEFAULT_TO, SweepSettings, run_sweep
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 from cli.outputs import print_json
+from cli.sweep_validation import add_validation_argument, heldout_curve
 from solver.parameters import PARAMETERS
 
 SEED_LIMIT = 2 ** 32 - 1   # numpy's SeedSequence / scikit-learn's random_state take 0 .. 2**32 - 1
@@ -39,6 +40,7 @@ def add_arguments(parser) -> None:
     grid.add_argument("--jobs", type=_whole("--jobs"), default=None, metavar="N",
                       help="parallel fold jobs through joblib (default: joblib's default; "
                            "-1 uses every core)")
+    add_validation_argument(grid)
     output = parser.add_mutually_exclusive_group()
     output.add_argument("--json", action="store_true",
                         help="print exactly one JSON object on stdout")
@@ -60,17 +62,19 @@ def run(args) -> int:
               file=sys.stderr)
     print(f"labels: {dataset.mapping_text()}", file=sys.stderr)
     sweep = _run_with_progress(dataset, config, settings, args.jobs)
+    curve = heldout_curve(args, dataset, sweep)          # with --test: a fixed validation set
     if args.json:
         data = sweep.to_dict()
         data["data"] = {"source": dataset.source, "sha256": dataset.sha256,
                         "features": list(dataset.feature_names),
                         "label_mapping": {str(k): v for k, v in dataset.label_mapping.items()}}
-        print_json(data)
+        print_json(curve.add_to_json(data) if curve else data)
     elif args.csv:
         import pandas as pd
-        pd.DataFrame(sweep.rows()).to_csv(sys.stdout, index=False, float_format="%.10g")
+        rows = curve.add_to(sweep.rows()) if curve else sweep.rows()
+        pd.DataFrame(rows).to_csv(sys.stdout, index=False, float_format="%.10g")
     else:
-        print(table_text(sweep, dataset))
+        print(table_text(sweep, dataset) + ("\n" + curve.text() if curve else ""))
     for failure in sweep.failures:
         print(f"fit failed at C = {failure.C:g} ({failure.where}): {failure.message}",
               file=sys.stderr)

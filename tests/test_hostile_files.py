@@ -173,3 +173,11 @@ def test_sweep_json_is_strict_json(capsys, data_csv):
     out, _ = succeeded(capsys, ["sweep", data_csv, "--positive", "pass", "--steps", "3",
                                 "--folds", "3", "--json"])
     _strict(out)
+
+
+def test_an_experiment_whose_weight_norm_is_0_exports_nothing(capsys, linear, tmp_path):
+    # it used to export +-inf distances (y f / |w|) with exit 0
+    resealed(linear, lambda d: d["results"].update(weight_norm=0.0, margin_width=None))
+    refused(capsys, ["export", linear, "--points", tmp_path / "p.csv"], [linear],
+            r"not a valid experiment file", problems=True)
+    assert not (tmp_path / "p.csv").exists()

@@ -148,3 +148,31 @@ def test_export_writes_both_outputs_together(capsys, tmp_path, experiment):
     out, _ = succeeded(capsys, ["export", experiment, "--points", points, "--classifier", card])
     assert points.read_text().startswith("point,line") and card.read_text().startswith("{")
     assert load_experiment(experiment).results is not None
+
+
+@pytest.mark.parametrize("where, match", [
+    ("data", r"-o .*data\.csv is the file this command reads"),
+    ("experiment", r"-o .*experiment\.json is the file this command reads"),
+    ("missing", r"the folder .*missing.* does not exist"),
+    ("folder", r"is a folder"),
+])
+def test_predict_checks_its_output_before_any_work(capsys, tmp_path, data_csv, experiment,
+                                                   where, match):
+    (tmp_path / "folder").mkdir()
+    target = {"data": data_csv, "experiment": experiment, "missing": tmp_path / "missing" / "o",
+              "folder": tmp_path / "folder"}[where]
+    refused(capsys, ["predict", experiment, data_csv, "--csv", "-o", target],
+            [data_csv, experiment], match)
+
+
+def test_predict_refuses_a_pipe_as_its_data(capsys, tmp_path, experiment):
+    pipe = tmp_path / "rows.csv"
+    os.mkfifo(pipe)
+    refused(capsys, ["predict", experiment, pipe], [experiment], r"is not a regular file")
+
+
+def test_predict_json_to_a_file_is_strict_json(capsys, tmp_path, data_csv, experiment):
+    import json
+    out = tmp_path / "scores.json"
+    succeeded(capsys, ["predict", experiment, data_csv, "--json", "-o", out])
+    json.loads(out.read_text(), parse_constant=lambda name: 1 / 0)

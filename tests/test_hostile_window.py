@@ -131,3 +131,18 @@ def test_a_report_into_a_missing_folder_fails_and_a_good_one_leaves_nothing_else
     export_report(tmp_path / name, data, result)
     assert (tmp_path / name).stat().st_size > 0
     assert sorted(p.name for p in tmp_path.iterdir()) == [name]
+
+
+def test_the_table_beside_an_opened_experiment_counts_as_its_data_file(window, qtbot, tmp_path):
+    import hostile_cli
+    from cli.main import main
+    table = hostile_cli.write_data(tmp_path, "batch.csv")
+    experiment = tmp_path / "batch.experiment.json"
+    assert main(["fit", str(table), "--positive", "pass", "--save", str(experiment)]) == 0
+    assert window.files.open_path(experiment)
+    settle(window, qtbot)
+    before = table.read_bytes()
+    assert not window.files.export_points(table)
+    assert not window.files.save_to(table)
+    assert table.read_bytes() == before
+    assert window.files.export_points(tmp_path / "points.csv")     # elsewhere: written

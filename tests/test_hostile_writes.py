@@ -134,3 +134,29 @@ def test_a_full_disk_is_reported_in_one_line_and_leaves_nothing(capsys, data_csv
     refused(capsys, ["fit", data_csv, "--positive", "pass", "--save", target], [data_csv],
             r"No space left on device")
     assert not target.exists() and _strays(data_csv.parent, "e.json") == []
+
+
+def test_two_processes_saving_one_experiment_at_once_never_lose_one_silently(tmp_path):
+    # overlap is up to the scheduler: whatever it does, each run either saved or said
+    # that the other one got there first; the file is a whole experiment; nothing stray
+    from hostile_cli import write_data
+    from solver.files import load_experiment
+    data = write_data(tmp_path, "data.csv", n=400)
+    target = tmp_path / "e.json"
+    root = os.path.dirname(os.path.dirname(__file__))
+    for _round in range(2):
+        target.unlink(missing_ok=True)
+        runs = [subprocess.Popen([sys.executable, "-m", "cli.main", "fit", str(data),
+                                  "--positive", "pass", "--C", str(c), "--save", str(target)],
+                                 cwd=root, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE,
+                                 text=True) for c in (0.5, 2.0)]
+        results = [(run.wait(timeout=120), run.stderr.read()) for run in runs]
+        for run in runs:
+            run.stderr.close()
+        assert all(code in (0, 2) for code, _ in results), results
+        assert any(code == 0 for code, _ in results)
+        for code, err in results:
+            if code == 2:
+                assert "was changed by another program" in err.splitlines()[-1]
+        assert load_experiment(target).config.C in (0.5, 2.0)
+        assert _strays(tmp_path, "e.json") == []

@@ -95,7 +95,7 @@ class FileActions(QObject):
             return False
         self.document.load(experiment.dataset, experiment.config, path=path,
                            note=experiment.note)
-        self.guard.remember(path)
+        self.guard.remember(path, dataset=experiment.dataset)
         evidence_of(self.document).reset(experiment.heldout)
         self.window.match_axes_to_data()
         self._add_recent(path)

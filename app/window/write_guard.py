@@ -21,6 +21,14 @@ from solver.files.atomic import file_stamp
 ANY = object()    # no expectation of what is on disk
 
 
+def _sha256(path: Path) -> str | None:
+    import hashlib
+    try:
+        return hashlib.sha256(path.read_bytes()).hexdigest()
+    except OSError:
+        return None
+
+
 def _real(path) -> str:
     return os.path.realpath(os.path.abspath(os.fspath(path)))
 
@@ -31,12 +39,25 @@ class WriteGuard:
         self.data_file: str | None = None       # the imported table, resolved
         self._stamps: dict[str, object] = {}    # resolved path -> file_stamp when read/written
 
-    def remember(self, path, data: bool = False) -> None:
-        """``path`` was just read (or written) by this window."""
+    def remember(self, path, data: bool = False, dataset=None) -> None:
+        """``path`` was just read (or written) by this window.
+
+        ``dataset``: the points of an experiment just opened; the table they
+        were imported from counts as the data file when it sits beside the
+        experiment under its recorded name and still has its recorded SHA-256.
+        """
         real = _real(path)
         if data:
             self.data_file = real
         self._stamps[real] = file_stamp(real)
+        if dataset is None:
+            return
+        self.data_file = None          # a newly opened experiment: its own table, if any
+        source = getattr(dataset, "source", None)
+        if source and getattr(dataset, "sha256", None):
+            table = Path(real).parent / Path(source).name
+            if table.is_file() and _sha256(table) == dataset.sha256:
+                self.data_file = _real(table)
 
     def expected(self, path):
         """What must still be on disk at ``path`` for a save to replace it silently."""

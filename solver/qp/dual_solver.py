@@ -51,6 +51,7 @@ SNAP = 1e-6             # when the exact face step fails: alphas this close to a
 DEBUG = False
 ACTIVE_SET_STEPS = 60   # active-set steps tried before the interior point
 ACTIVE_SET_LIMIT = 300  # free variables up to which they are worth a try
+ACTIVE_SET_FAILURES = 2 # after this many misses in one fit (a poor start), cvxopt only
 _BLAS = ThreadpoolController()
 START = "low_rank"
 LOW_RANK = 200
@@ -116,6 +117,7 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
     tol = max(1e-7, 10 * options.feastol)
     iterations, batch, stalls, status, work = 0, BATCH, 0, "max_rounds", np.arange(0)
     fresh = True                                  # the gradient was just computed from alpha
+    failures = 0                                  # rounds the active-set method did not end
     for rounds in range(1, MAX_ROUNDS + 1):
         b, gap, violation = _certificate(alpha, gradient, y, upper)
         if DEBUG:
@@ -147,7 +149,10 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
         rest = float(y @ alpha - yw @ a_old)          # y'a outside W: y_W'a_W = -rest
         # an active-set step from the face the round starts on (cheap: one solve on the
         # free set) often ends a warm start; cvxopt's interior point where it does not
-        a_new = _face_step(Q_ww, linear, yw, upper[work], -rest, a_old)
+        a_new = None
+        if failures < ACTIVE_SET_FAILURES:
+            a_new = _face_step(Q_ww, linear, yw, upper[work], -rest, a_old)
+            failures += a_new is None
         if a_new is None:
             a_ip, nu, its, qp_status, _ = solve_qp(Q_ww, linear, yw, bound, -rest, options,
                                                    hard, start=a_old)

@@ -19,6 +19,7 @@ import numpy as np
 BUDGET = 200 * 2**20        # bytes of kernel columns kept
 BLOCK = 2**17               # kernel entries computed at a time
 MIN_CAPACITY = 64
+PRODUCT_ROWS = 128          # cached columns combined at a time in product()
 
 
 class KernelColumns:
@@ -46,23 +47,31 @@ class KernelColumns:
 
     def block(self, idx: np.ndarray) -> np.ndarray:
         """K[idx, idx]."""
-        return self.store[self._ensure(idx)][:, idx]
+        return self.store[np.ix_(self._ensure(idx), idx)]      # gathers |idx|^2 entries only
 
     def product(self, idx: np.ndarray, weights: np.ndarray) -> np.ndarray:
         """K[:, idx] @ weights, without keeping columns that do not fit."""
         idx = np.asarray(idx, dtype=np.intp)
         if len(idx) <= self.capacity:
-            return weights @ self.store[self._ensure(idx)]
+            return self._combine(self._ensure(idx), weights, np.zeros(len(self.X)))
         out = np.zeros(len(self.X))
         cached = self.slot[idx] >= 0
         if cached.any():
-            out += weights[cached] @ self.store[self.slot[idx[cached]]]
+            self._combine(self.slot[idx[cached]], weights[cached], out)
         rest = np.flatnonzero(~cached)
         step = max(1, BLOCK // len(self.X))
         for start in range(0, len(rest), step):
             part = rest[start:start + step]
             out += weights[part] @ self.kernel_matrix(self.X[idx[part]], self.X)
         self.computed += len(rest) * len(self.X)
+        return out
+
+    def _combine(self, slots, weights, out):
+        """out += weights @ store[slots], a few rows at a time: store[slots] is a copy
+        (200 MB for the whole buffer at n = 10,000)."""
+        for start in range(0, len(slots), PRODUCT_ROWS):
+            part = slice(start, start + PRODUCT_ROWS)
+            out += weights[part] @ self.store[slots[part]]
         return out
 
     def _ensure(self, idx: np.ndarray) -> np.ndarray:

@@ -14,11 +14,12 @@ from solver.study.narrative import summary
 from solver.study.sweep import (DEFAULT_FROM, DEFAULT_STEPS, DEFAULT_TO, SweepSettings,
                                 run_sweep)
 from solver.study.sweep_result import FitFailure, SweepResult
+from solver.study.validation import heldout_errors
 
 __all__ = [
     "Agreement", "agreement", "Comparison", "compare", "LEAVE_ONE_OUT", "CVEstimate", "cross_validate",
     "points_fingerprint", "summary", "DEFAULT_FROM", "DEFAULT_STEPS", "DEFAULT_TO",
     "SweepSettings", "run_sweep", "FitFailure", "SweepResult", "DATA_UNITS", "FEATURE_SPACE",
     "Classifier", "Confusion", "Scores", "confusion", "heldout_agreement", "heldout_sentence", "score", "Influence", "PointInfluence",
-    "influence_of_support_vectors",
+    "influence_of_support_vectors", "heldout_errors",
 ]

@@ -117,13 +117,16 @@ class Influence:
         return (f"the other {self.non_support} points are not support vectors (alpha = 0): "
                 "leaving any of them out changes nothing, by construction")
 
-    def lines(self, top: int = 10) -> list[str]:
+    def lines(self, top: int = 10, source_lines=()) -> list[str]:
+        """The summary's lines; ``source_lines``: each point's line in its file, if known."""
         out = [f"  influence of the {len(self.entries)} support vectors (each left out in "
                "turn; feature scaling held), largest first:"]
         for entry in self.entries[:top]:
             angle = "" if entry.angle_change is None else \
                 f"angle {entry.angle_change:+.3g} deg, "
-            out.append(f"    point {entry.point}: {angle}b {entry.b_change:+.3g}, margin "
+            where = (f" (line {source_lines[entry.point]})"
+                     if len(source_lines) == self.n_points else "")
+            out.append(f"    point {entry.point}{where}: {angle}b {entry.b_change:+.3g}, margin "
                        f"{entry.margin_change:+.3g}, {len(entry.flips)} training and "
                        f"{len(entry.heldout_flips)} held-out flips")
         if len(self.entries) > top:
@@ -206,13 +209,14 @@ class _Geometry:
     norm: float                     # |w| in the fit's space
     margin: float                   # 2/|w|: data units (linear) or feature space
     f0: np.ndarray
+    positive0: np.ndarray           # f0 >= 0: the full fit's predicted class
 
     @classmethod
     def of(cls, result, f0, walk):
         linear = result.config.kernel == "linear"
         return cls(linear=linear, w=None if not linear else np.asarray(result.w, float),
                    b=float(result.b), norm=float(result.norm_w),
-                   margin=float(result.margin_width), f0=f0)
+                   margin=float(result.margin_width), f0=f0, positive0=f0 >= 0)
 
     def compare(self, c, model, norm_new, f_new, f_new_h, f0_h, method) -> PointInfluence:
         if self.linear:
@@ -224,13 +228,14 @@ class _Geometry:
         else:
             angle, b_new = None, model.b
             margin = 2.0 / norm_new if norm_new > 0 else math.inf
-        flips = np.flatnonzero((f_new >= 0) != (self.f0 >= 0))
-        heldout_flips = np.flatnonzero((f_new_h >= 0) != (f0_h >= 0))
+        flips = np.flatnonzero((f_new >= 0) != self.positive0).tolist()
+        heldout_flips = (np.flatnonzero((f_new_h >= 0) != (f0_h >= 0)).tolist()
+                         if len(f0_h) else [])
+        change = f_new - self.f0
         return PointInfluence(point=int(c), angle_change=angle, b_change=float(b_new - self.b),
                               margin_change=float(margin - self.margin),
-                              flips=tuple(int(i) for i in flips),
-                              heldout_flips=tuple(int(i) for i in heldout_flips),
-                              largest_decision_change=float(np.max(np.abs(f_new - self.f0))),
+                              flips=tuple(flips), heldout_flips=tuple(heldout_flips),
+                              largest_decision_change=float(max(change.max(), -change.min())),
                               method=method, model=model)
 
 

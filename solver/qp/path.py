@@ -206,7 +206,7 @@ def compute_path(X, y, config: FitConfig | None = None, c_from: float = DEFAULT_
                 f"({trouble}); try scaling the features (zscore) or a narrower C range"
             ) from None
     return CPath(config=config, X=X, y=y, Xs=Xs, shift=shift, scale=scale, weights=weights,
-                 c_from=float(c_from), c_to=float(c_to), starts=np.array(walk.starts),
+                 c_from=float(walk.starts[0]), c_to=float(c_to), starts=np.array(walk.starts),
                  events=tuple(walk.events), reanchors=tuple(walk.reanchors),
                  hard_margin_from=walk.hard_margin_from(),
                  seconds=time.perf_counter() - started, gram=gram,
@@ -225,7 +225,21 @@ class _Walk:
 
     def run(self, c_from, c_to, progress, cancel) -> None:
         tracer = self.tracer
-        self._anchor(c_from, None)
+        start = c_from
+        while True:
+            try:
+                self._anchor(start, None)
+                break
+            except PathTrouble as trouble:
+                # e.g. unbalanced classes at tiny C: w = 0 and every point of the larger
+                # class on the edge; start a decade later and say so (below the start,
+                # the window and the CLI solve instead)
+                if start * 10 >= c_to:
+                    raise
+                self.reanchors.append(Reanchor(start, f"no exact start at C = {start:g} "
+                                               f"({trouble}); the path starts at "
+                                               f"C = {start * 10:g}"))
+                start *= 10
         steps = 0
         while True:
             codes = tracer.code.copy()
@@ -275,6 +289,8 @@ class _Walk:
             result = fit(self.X, self.y, self.config.with_changes(C=C))
         except ConvergenceError as stopped:
             # its last iterate is close; repair() below makes the partition exact
+            if stopped.best is None:
+                raise PathTrouble(f"the QP at C = {C:.6g} gave no solution") from None
             result = stopped.best
         tracer = self.tracer
         top = C * tracer.weights
@@ -289,6 +305,7 @@ class _Walk:
         tracer.exact_edge()
         if reason is not None:
             self.reanchors.append(Reanchor(C, reason))
+        if reason is not None and old is not None:
             changed = np.flatnonzero(old != tracer.code)
             for j in changed:
                 self.events.append(PathEvent(C, int(j), self._status_of_code(old[j], j),

@@ -3,7 +3,7 @@
 The rows are read by the experiment's feature names; if the file also has
 the experiment's label column, the output adds the error and the confusion
 counts on these rows.  The classifier is the one stored in the experiment
-(its figures, not a re-fit), so the numbers are those its model card gives.
+(its figures, not a re-fit), so the numbers are those its classifier file gives.
 """
 
 from __future__ import annotations

@@ -19,7 +19,7 @@ import numpy as np
 from solver.errors import FileFormatError
 from solver.messages import listing, quote
 
-MAX_DEPTH = 16           # an experiment nests 5 deep; a model card 4
+MAX_DEPTH = 16           # an experiment nests 5 deep; a classifier file 4
 MAX_INTEGER_DIGITS = 20  # every integer we write (indices, lines, counts) fits in 20 digits
 
 # a JSON string, unrolled so that a 200 MB string is one fast scan

@@ -26,6 +26,7 @@ returns its last (best: D only decreases) iterate with a status other than
 
 from __future__ import annotations
 
+import logging
 from dataclasses import replace
 
 import numpy as np
@@ -48,7 +49,7 @@ MAX_ROUNDS = 1000
 GAP_TARGET = 5e-9       # relative duality gap of the whole problem (issue 13 asks 1e-8)
 STALL_ROUNDS = 6        # rounds in a row without progress before giving up
 SNAP = 1e-6             # when the exact face step fails: alphas this close to a bound are put on it
-DEBUG = False
+log = logging.getLogger(__name__)   # rounds at DEBUG level
 ACTIVE_SET_STEPS = 60   # active-set steps tried before the interior point
 ACTIVE_SET_LIMIT = 300  # free variables up to which they are worth a try
 ACTIVE_SET_FAILURES = 2 # after this many misses in one fit (a poor start), cvxopt only
@@ -120,9 +121,8 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
     failures = 0                                  # rounds the active-set method did not end
     for rounds in range(1, MAX_ROUNDS + 1):
         b, gap, violation = _certificate(alpha, gradient, y, upper)
-        if DEBUG:
-            print(f"round {rounds}: gap {gap:.2e}, violation {violation:.2e}, "
-                  f"free {np.count_nonzero((alpha > 0) & (alpha < upper))}, batch {batch}")
+        log.debug("round %d: gap %.2e, violation %.2e, free %d, batch %d", rounds, gap,
+                  violation, np.count_nonzero((alpha > 0) & (alpha < upper)), batch)
         if (violation <= tol) if hard else (gap <= GAP_TARGET):
             if fresh:
                 status = "optimal"
@@ -158,10 +158,10 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
                                                    hard, start=a_old)
             iterations += its
             a_new, exact = polish(Q_ww, linear, yw, upper[work], -rest, a_ip, nu, SNAP)
-            if DEBUG:
-                print(f"   |W| = {len(work)}, {its} its, {qp_status}, exact face step {exact}")
-        elif DEBUG:
-            print(f"   |W| = {len(work)}, solved by an active-set step")
+            log.debug("   |W| = %d, %d its, %s, exact face step %s", len(work), its, qp_status,
+                      exact)
+        else:
+            log.debug("   |W| = %d, solved by an active-set step", len(work))
         a_new = _restore_equality(a_new, yw, upper[work], rest)
         step = a_new - a_old
         decrease = -(gradient[work] @ step + 0.5 * step @ Q_ww @ step)
@@ -284,9 +284,8 @@ def _alpha_from_low_rank(columns, y, upper, options, hard, give_up_when_poor):
     if give_up_when_poor and float(d.max()) > POOR_RESIDUAL:
         return POOR
     found = solve_low_rank(V, d, y, upper, loose, hard)
-    if DEBUG:
-        print(f"low rank: r = {len(V)}, max residual {d.max():.1e}, "
-              f"{found[2] if found else '-'} its")
+    log.debug("low rank: r = %d, max residual %.1e, %s its", len(V), d.max(),
+              found[2] if found else "-")
     if found is None:
         return None
     alpha = found[0]

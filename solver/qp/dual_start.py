@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from solver.qp.subsample import stratified_subsample
+
 SUBSAMPLE = 250
 SUBSAMPLE_SHARE = 0.5
 
@@ -41,11 +43,4 @@ def feasible(alpha: np.ndarray, y: np.ndarray, margin: np.ndarray) -> np.ndarray
 
 def subsample(y: np.ndarray, rng_seed: int = 0) -> np.ndarray:
     """Seeded, stratified indices: a share SUBSAMPLE_SHARE (at least SUBSAMPLE)."""
-    rng = np.random.default_rng(rng_seed)
-    size = max(SUBSAMPLE, int(SUBSAMPLE_SHARE * len(y)))
-    picks = []
-    for sign in (-1, 1):
-        members = np.flatnonzero(y == sign)
-        share = max(2, int(round(size * len(members) / len(y))))
-        picks.append(rng.choice(members, size=min(share, len(members)), replace=False))
-    return np.sort(np.concatenate(picks))
+    return stratified_subsample(y, max(SUBSAMPLE, int(SUBSAMPLE_SHARE * len(y))), rng_seed)

@@ -27,6 +27,7 @@ from dataclasses import replace
 import numpy as np
 
 from solver.errors import ConvergenceError
+from solver.qp.subsample import stratified_subsample
 from solver.qp.primal_qp import PrimalSolution, check_separable, solve_primal_qp
 
 FULL_QP_LIMIT = 600     # up to this many points: one QP on all of them
@@ -129,15 +130,8 @@ def _margins_from_subsample(phi, y, penalties, options):
     m/n of the loss terms, so its C is scaled by n/m to keep the balance of
     1/2 |w|^2 against the loss.
     """
-    rng = np.random.default_rng(0)
     n = len(y)
-    size = max(SUBSAMPLE, n // 10)
-    picks = []
-    for sign in (-1, 1):
-        members = np.flatnonzero(y == sign)
-        share = max(2, int(round(size * len(members) / n)))
-        picks.append(rng.choice(members, size=min(share, len(members)), replace=False))
-    sub = np.concatenate(picks)
+    sub = stratified_subsample(y, max(SUBSAMPLE, n // 10))
     sub_penalties = None if penalties is None else penalties[sub] * (n / len(sub))
     if len(sub) <= FULL_QP_LIMIT:
         sol = solve_primal_qp(phi[sub], y[sub], sub_penalties, options)

@@ -27,6 +27,7 @@ from threadpoolctl import ThreadpoolController
 from solver import scaling
 from solver.config import FitConfig
 from solver.errors import ConvergenceError, InputError
+from solver.messages import clip, one_line
 from solver.qp.path_gram import KERNEL_LIMIT, FeatureGram, KernelGram
 from solver.qp.path_trace import EDGE, HELD, OUT, PathTrouble, Tracer
 from solver.qp.path_result import result_from_alpha
@@ -201,10 +202,14 @@ def compute_path(X, y, config: FitConfig | None = None, c_from: float = DEFAULT_
         try:
             walk.run(float(c_from), float(c_to), progress, cancel)
         except PathTrouble as trouble:
-            raise ConvergenceError(
-                f"the exact C path could not be continued at C = {walk.tracer.C:.6g} "
-                f"({trouble}); try scaling the features (zscore) or a narrower C range"
-            ) from None
+            where = getattr(walk.tracer, "C", c_from)
+            pieces = [piece.strip() for piece in str(trouble).split(";")
+                      if piece.strip() not in ("start", "moved on a little", "None")]
+            first = pieces[0] if pieces else str(trouble)
+            raise ConvergenceError(one_line(
+                f"the exact C path could not be continued at C = {where:.6g} "
+                f"({clip(first.strip(), 120)}); try scaling the features (zscore) or a "
+                f"narrower C range")) from None
     return CPath(config=config, X=X, y=y, Xs=Xs, shift=shift, scale=scale, weights=weights,
                  c_from=float(walk.starts[0]), c_to=float(c_to), starts=np.array(walk.starts),
                  events=tuple(walk.events), reanchors=tuple(walk.reanchors),

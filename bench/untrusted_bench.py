@@ -14,9 +14,7 @@ machine are noisy, so compare within one run.
 from __future__ import annotations
 
 import json
-import statistics
 import tempfile
-import time
 from pathlib import Path
 
 import numpy as np
@@ -27,14 +25,7 @@ from solver.files.dataset import Dataset
 from solver.files.experiment import load_experiment, save_experiment
 from solver.files.untrusted import parse_untrusted
 
-
-def _median_ms(action, repeats: int = 5) -> float:
-    times = []
-    for _ in range(repeats):
-        start = time.perf_counter()
-        action()
-        times.append(time.perf_counter() - start)
-    return 1e3 * statistics.median(times)
+from bench.file_bench import _median_ms  # the same median-of-repeats timer
 
 
 def main() -> None:

@@ -24,6 +24,7 @@ class Kernel:
     formula: str                           # f(x) as written into exported files
     feature_map: Callable | None = None    # phi(X, settings) with phi.phi' = k, or None
     export_terms: Callable | None = None   # export_terms(model dict) -> extra classifier keys
+    compiled: str | None = None            # "rbf": solver.qp.smo's compiled pair steps apply
 
     @property
     def has_feature_map(self) -> bool:

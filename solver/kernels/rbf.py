@@ -35,5 +35,5 @@ KERNEL = Kernel(
     name="rbf", title="Gaussian (RBF)", parameters=("gamma",),
     help="k(x, z) = exp(-gamma |x - z|^2): a boundary that can curve around groups of "
          "points; gamma sets how far one point's influence reaches",
-    gram=_gram, export_terms=_terms,
+    gram=_gram, export_terms=_terms, compiled="rbf",
     formula="rbf: f(x) = b + sum_j coefficients[j] * exp(-gamma * |u - support_vectors[j]|^2)")

@@ -1,0 +1,222 @@
+"""Compiled pair steps for the RBF dual: sequential minimal optimisation.
+
+    maximise  D(a) = 1'a - 1/2 a'Qa,   Q_ij = y_i y_j k(x_i, x_j)
+    subject to 0 <= a_i <= C_i,  y'a = 0
+
+The state is alpha and F_i = y_i - (K beta)_i with beta = alpha * y, which is
+G_i = -y_i (Qa - 1)_i of ``dual_certify``: at the optimum every F_i of a
+variable whose a_i y_i can grow ("up") is at most every F_j of one whose
+a_j y_j can shrink ("low"), and b lies between.  Each step moves one pair
+along a_i += y_i t, a_j -= y_j t, which keeps y'a = 0; D along it is a
+parabola with curvature k_ii + k_jj - 2 k_ij, so the step is exact, clipped
+to the box.  i is the largest F among "up"; j is chosen with second-order
+information, the largest gain (F_i - F_t)^2 / (k_ii + k_tt - 2 k_it) among
+"low" (Fan, Chen & Lin, "Working Set Selection Using Second Order
+Information for Training SVM", JMLR 6, 2005).  Variables at a bound that are
+far from violating are left out of the search for a while (shrinking,
+Joachims 1999); F is kept exact on every point, so they are checked again at
+no cost before the loop ends.  Kernel rows come from a least-recently-used
+cache of full rows.
+
+This is a first-order method: it stops at a violation ``eps`` and
+``smo.py`` finishes exactly on the face it found.  numba compiles it once
+per machine (cached beside the module, or in the user's cache folder).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numba as nb
+import numpy as np
+
+TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
+
+
+@nb.njit(cache=True, nogil=True)
+def _rbf_row(X, i, gamma, out):
+    n, d = X.shape
+    for t in range(n):
+        s = 0.0
+        for k in range(d):
+            diff = X[t, k] - X[i, k]
+            s += diff * diff
+        out[t] = math.exp(-gamma * s)
+
+
+@nb.njit(cache=True, nogil=True)
+def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock):
+    """The cache row holding k(x_i, .), computed into the least recently used slot on a miss."""
+    s = slot_of[i]
+    if s < 0:
+        s = 0
+        oldest = stamp[0]
+        for k in range(1, len(stamp)):
+            if stamp[k] < oldest:
+                oldest = stamp[k]
+                s = k
+        if owner[s] >= 0:
+            slot_of[owner[s]] = -1
+        owner[s] = i
+        slot_of[i] = s
+        _rbf_row(X, i, gamma, rows[s])
+    stamp[s] = clock
+    return s
+
+
+@nb.njit(cache=True, nogil=True)
+def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stamp):
+    """Pair steps until max(F over up) - min(F over low) <= eps or max_steps.
+
+    alpha and F are updated in place (F exact on every point on return).
+    Returns (steps, violation).
+    """
+    n = len(y)
+    act = np.arange(n)                 # the variables searched and updated: act[:m]
+    m = n
+    shrink_every = min(n, 1000)
+    countdown = shrink_every
+    clock = stamp.max() + 1
+    steps = 0
+    violation = np.inf
+    while steps < max_steps:
+        # i: the largest F among "up"; also the smallest F among "low"
+        f_up, i = -np.inf, -1
+        f_low = np.inf
+        for k in range(m):
+            t = act[k]
+            if (y[t] > 0 and alpha[t] < C[t]) or (y[t] < 0 and alpha[t] > 0):
+                if F[t] > f_up:
+                    f_up, i = F[t], t
+            if (y[t] > 0 and alpha[t] > 0) or (y[t] < 0 and alpha[t] < C[t]):
+                if F[t] < f_low:
+                    f_low = F[t]
+        violation = f_up - f_low
+        if i < 0 or violation <= eps:
+            if m == n:
+                break
+            _reconstruct(X, gamma, y, alpha, F, act, m)   # F afresh on the left-out ones
+            act = np.arange(n)
+            m = n
+            countdown = shrink_every
+            continue
+        si = _slot(i, X, gamma, rows, slot_of, owner, stamp, clock)
+        clock += 1
+        row_i = rows[si]
+        k_ii = row_i[i]
+        best, j = 0.0, -1
+        for k in range(m):
+            t = act[k]
+            if (y[t] > 0 and alpha[t] > 0) or (y[t] < 0 and alpha[t] < C[t]):
+                gain = f_up - F[t]
+                if gain > 0.0:
+                    curvature = k_ii + 1.0 - 2.0 * row_i[t]   # k_tt = 1 for the RBF kernel
+                    if curvature <= 0.0:
+                        curvature = TAU
+                    score = gain * gain / curvature
+                    if score > best:
+                        best, j = score, t
+        if j < 0:
+            break
+        sj = _slot(j, X, gamma, rows, slot_of, owner, stamp, clock)
+        clock += 1
+        row_i = rows[si]
+        row_j = rows[sj]
+        curvature = k_ii + row_j[j] - 2.0 * row_i[j]
+        if curvature <= 0.0:
+            curvature = TAU
+        step = (f_up - F[j]) / curvature
+        room = C[i] - alpha[i] if y[i] > 0 else alpha[i]
+        if step > room:
+            step = room
+        room = alpha[j] if y[j] > 0 else C[j] - alpha[j]
+        if step > room:
+            step = room
+        if y[i] > 0:
+            alpha[i] = C[i] if step == C[i] - alpha[i] else min(alpha[i] + step, C[i])
+        else:
+            alpha[i] = 0.0 if step == alpha[i] else max(alpha[i] - step, 0.0)
+        if y[j] > 0:
+            alpha[j] = 0.0 if step == alpha[j] else max(alpha[j] - step, 0.0)
+        else:
+            alpha[j] = C[j] if step == C[j] - alpha[j] else min(alpha[j] + step, C[j])
+        for k in range(m):
+            t = act[k]
+            F[t] -= step * (row_i[t] - row_j[t])
+        steps += 1
+        countdown -= 1
+        if countdown <= 0:
+            countdown = shrink_every
+            m = _shrink(y, C, alpha, F, act, m)
+    if m < n:
+        _reconstruct(X, gamma, y, alpha, F, act, m)
+    return steps, violation
+
+
+@nb.njit(cache=True, nogil=True)
+def _shrink(y, C, alpha, F, act, m):
+    """Leave out bound variables that cannot be chosen soon: an "up"-only one whose F is
+    below every "low" F, a "low"-only one whose F is above every "up" F.  act[:m] is
+    compacted in place and the new m returned."""
+    f_up, f_low = -np.inf, np.inf
+    for k in range(m):
+        t = act[k]
+        if ((y[t] > 0 and alpha[t] < C[t]) or (y[t] < 0 and alpha[t] > 0)) and F[t] > f_up:
+            f_up = F[t]
+        if ((y[t] > 0 and alpha[t] > 0) or (y[t] < 0 and alpha[t] < C[t])) and F[t] < f_low:
+            f_low = F[t]
+    kept = 0
+    for k in range(m):
+        t = act[k]
+        up = (y[t] > 0 and alpha[t] < C[t]) or (y[t] < 0 and alpha[t] > 0)
+        low = (y[t] > 0 and alpha[t] > 0) or (y[t] < 0 and alpha[t] < C[t])
+        if (up and not low and F[t] < f_low) or (low and not up and F[t] > f_up):
+            continue
+        act[kept] = t
+        kept += 1
+    return kept
+
+
+@nb.njit(cache=True, nogil=True)
+def _reconstruct(X, gamma, y, alpha, F, act, m):
+    """F_t = y_t - sum_j beta_j k(x_t, x_j) for every t not in act[:m]."""
+    n, d = X.shape
+    inside = np.zeros(n, dtype=nb.boolean)
+    for k in range(m):
+        inside[act[k]] = True
+    support = np.flatnonzero(alpha > 0)
+    for t in range(n):
+        if inside[t]:
+            continue
+        s = 0.0
+        for c in range(len(support)):
+            j = support[c]
+            q = 0.0
+            for k in range(d):
+                diff = X[t, k] - X[j, k]
+                q += diff * diff
+            s += alpha[j] * y[j] * math.exp(-gamma * q)
+        F[t] = y[t] - s
+
+
+@nb.njit(cache=True, nogil=True)
+def rbf_product(X, gamma, columns, weights, out):
+    """out -= K[:, columns] @ weights, row by row, without storing K."""
+    n, d = X.shape
+    for t in range(n):
+        s = 0.0
+        for c in range(len(columns)):
+            j = columns[c]
+            q = 0.0
+            for k in range(d):
+                diff = X[t, k] - X[j, k]
+                q += diff * diff
+            s += weights[c] * math.exp(-gamma * q)
+        out[t] -= s
+
+
+def new_cache(n: int, budget_bytes: int):
+    """Arrays of an empty row cache for n points within budget_bytes."""
+    slots = int(max(2, min(n, budget_bytes // (8 * max(n, 1)))))
+    return (np.empty((slots, n)), np.full(n, -1, dtype=np.int64),
+            np.full(slots, -1, dtype=np.int64), np.zeros(slots, dtype=np.int64))

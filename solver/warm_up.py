@@ -1,0 +1,35 @@
+"""Get the compiled parts of the solver ready before anyone waits for them.
+
+The RBF pair steps (``qp/smo_core.py``) are compiled by numba on their first
+call: a few seconds on a machine whose cache is empty, a fraction of a second
+when the compiled code is found in a cache.  ``prepare_kernel_solver`` makes
+that first call on a tiny invented problem, so that a program with time to
+spare (the window, just after it opens) pays it before the user asks for a
+kernel fit.  numba compiles a function once per process under its own lock:
+a real fit that starts meanwhile waits for the same compilation instead of
+doing it again.
+"""
+
+from __future__ import annotations
+
+import time
+
+import numpy as np
+
+from solver.config import FitConfig
+from solver.fit import fit
+
+# eight invented points: a ring of one class around a square of the other, which
+# no line separates, so the fit has free and bound support vectors alike
+_RING = [(2.0, 0.0), (0.0, 2.0), (-2.0, 0.0), (0.0, -2.0)]
+_CORE = [(0.4, 0.4), (-0.4, 0.4), (-0.4, -0.4), (0.4, -0.3)]
+_CONFIG = FitConfig(kernel="rbf", C=1.0, gamma=0.5)
+
+
+def prepare_kernel_solver() -> float:
+    """Fit the tiny RBF problem once; the seconds it took (compiling or loading included)."""
+    X = np.array(_RING + _CORE, dtype=float)
+    y = np.r_[np.ones(len(_RING), dtype=int), -np.ones(len(_CORE), dtype=int)]
+    started = time.perf_counter()
+    fit(X, y, _CONFIG)
+    return time.perf_counter() - started

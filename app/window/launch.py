@@ -39,6 +39,8 @@ def launch_window(argv) -> int:
     app = QApplication.instance() or QApplication([sys.argv[0], *qt_args])
     window = MainWindow()
     window.show()
+    from app.window.warm_up_status import install_warm_up
+    install_warm_up(window)      # the kernel solver gets ready while the user looks around
     if not window.offer_recovery() and not options.empty:
         sample = first_sample()
         if sample is not None:

@@ -4,7 +4,7 @@ import importlib
 import sys
 
 MODULES = ["solver_bench", "kernel_bench", "gui_bench", "sweep_bench", "file_bench",
-           "untrusted_bench", "influence_bench", "path_bench"]
+           "untrusted_bench", "influence_bench", "path_bench", "first_fit_bench"]
 
 
 def main(argv) -> int:

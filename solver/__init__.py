@@ -4,7 +4,10 @@
     result = fit(X, y, FitConfig(C=1.0))
 """
 
-from solver import kernels
+from solver.compiled_cache import import_compiled_steps
+
+import_compiled_steps()     # before anything imports them: numba may need a cache folder found
+from solver import kernels  # noqa: E402
 from solver.cautions import CAUTION_LINE, CAUTIONS
 from solver.config import FitConfig, SolverOptions
 from solver.errors import (ConvergenceError, FileFormatError, InputError, NotSeparableError,

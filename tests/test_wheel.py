@@ -117,3 +117,95 @@ def test_the_window_opens_on_the_bundled_sample(installed, tmp_path):
     out = _installed_python(installed, code, tmp_path)
     assert out.returncode == 0, out.stderr
     assert out.stdout.split() == ["44", "1-pilot-batch-gauges.experiment.json"]
+
+
+# -- the compiled RBF pair steps from an installed copy (issue 13) ------------------
+
+RBF_FIT = ["--positive", "in pattern", "--kernel", "rbf", "--gamma", "1", "--C", "10",
+           "--scale", "zscore", "--json"]
+
+
+def _respecting_permissions():
+    """A command prefix under which file permissions hold (root ignores them), or None."""
+    if not hasattr(os, "geteuid") or os.geteuid() != 0:
+        return []
+    setpriv = shutil.which("setpriv")
+    if setpriv is None:
+        return None
+    drop = "-dac_override,-dac_read_search"
+    return [setpriv, f"--bounding-set={drop}", f"--inh-caps={drop}"]
+
+
+def _writable(folder: Path, on: bool):
+    for path in [folder, *folder.rglob("*")]:
+        if not path.is_symlink():
+            mode = path.stat().st_mode
+            path.chmod(mode | 0o200 if on else mode & ~0o222)
+
+
+@pytest.fixture(scope="module")
+def read_only_install(wheel, tmp_path_factory):
+    """(slackline, its solver folder) of another clean venv whose installed files cannot be written."""
+    prefix = _respecting_permissions()
+    if prefix is None:
+        pytest.skip("running as root without setpriv: read-only folders cannot be simulated")
+    home = tmp_path_factory.mktemp("read-only-venv")
+    venv.create(home, with_pip=True)
+    python = home / "bin" / "python"
+    site = Path(subprocess.run([python, "-c", "import sysconfig; print(sysconfig.get_paths()['purelib'])"],
+                               check=True, capture_output=True, text=True).stdout.strip())
+    (site / "_reuse_test_dependencies.pth").write_text(sysconfig.get_paths()["purelib"] + "\n")
+    subprocess.run([python, "-m", "pip", "install", "--quiet", "--no-deps", "--no-index",
+                    "--no-compile", str(wheel)], check=True, capture_output=True, text=True)
+    _writable(site / "solver", False)
+    yield prefix + [str(home / "bin" / "slackline")], site / "solver"
+    _writable(site / "solver", True)
+
+
+def _rbf_fit(command, table, cwd, home):
+    env = {k: v for k, v in os.environ.items()
+           if k not in ("PYTHONPATH", "VIRTUAL_ENV", "NUMBA_CACHE_DIR", "XDG_CACHE_HOME")}
+    env.update(HOME=str(home), TMPDIR=str(cwd))
+    out = subprocess.run([*command, "fit", str(table), *RBF_FIT], cwd=cwd, env=env,
+                         capture_output=True, text=True, timeout=300)
+    assert out.returncode == 0, out.stderr
+    return json.loads(out.stdout)
+
+
+def _compiled_files(folder: Path):
+    return sorted(p.name for p in folder.rglob("smo_core*.nbi"))
+
+
+def test_an_rbf_fit_runs_from_the_installed_wheel_in_another_folder(installed, tmp_path):
+    table = Path(_installed_python(
+        installed, "from solver.files import bundled; print(bundled.sample('3-hollow-cone-spray.csv'))",
+        tmp_path).stdout.strip())
+    result = _rbf_fit([str(installed[0] / "slackline")], table, tmp_path, tmp_path)
+    assert result["status"] and len(result["alpha"]) == len(result["status"])
+
+
+def test_a_read_only_install_keeps_compiled_code_in_the_home_cache(read_only_install, installed,
+                                                                   tmp_path):
+    command, solver_folder = read_only_install
+    table = solver_folder / "samples" / "3-hollow-cone-spray.csv"
+    home = tmp_path / "home"
+    home.mkdir()
+    fitted = _rbf_fit(command, table, tmp_path, home)
+    reference = _rbf_fit([str(installed[0] / "slackline")], table, tmp_path, tmp_path)
+    assert fitted["decision"] == pytest.approx(reference["decision"], abs=1e-9)
+    assert _compiled_files(solver_folder) == []
+    assert _compiled_files(home / ".cache")
+
+
+def test_a_read_only_install_with_a_read_only_home_still_fits(read_only_install, tmp_path):
+    command, solver_folder = read_only_install
+    home = tmp_path / "locked-home"
+    home.mkdir()
+    home.chmod(0o555)
+    try:
+        fitted = _rbf_fit(command, solver_folder / "samples" / "3-hollow-cone-spray.csv",
+                          tmp_path, home)
+    finally:
+        home.chmod(0o755)
+    assert fitted["alpha"]
+    assert _compiled_files(tmp_path)           # numba was pointed at the temporary folder

@@ -1,0 +1,43 @@
+"""A place for numba's cache of the compiled RBF pair steps, wherever the solver is installed.
+
+``solver/qp/smo_core.py`` compiles with ``cache=True``: numba keeps the
+compiled code beside the module (``solver/qp/__pycache__``) or, when that
+folder is read-only, in the user's cache folder (``~/.cache/numba``).  When
+neither can be written (a system-wide install run by a user whose home is
+read-only, a locked-down container) numba refuses to import the module at all
+("cannot cache function ...: no locator available"), and with it every fit,
+linear ones too.  ``import_compiled_steps`` then points numba at a folder of
+our own in the temporary directory and imports again: the steps compile once
+per boot there instead of once per machine, and everything works.
+"""
+
+from __future__ import annotations
+
+import importlib
+import logging
+import os
+import tempfile
+
+COMPILED = "solver.qp.smo_core"
+log = logging.getLogger(__name__)
+
+
+def fallback_folder() -> str:
+    user = os.getuid() if hasattr(os, "getuid") else os.environ.get("USERNAME", "user")
+    return os.path.join(tempfile.gettempdir(), f"slackline-compiled-{user}")
+
+
+def import_compiled_steps():
+    """Import the compiled pair steps, finding numba a writable cache folder if need be."""
+    try:
+        return importlib.import_module(COMPILED)
+    except RuntimeError as exc:
+        if "no locator available" not in str(exc) or os.environ.get("NUMBA_CACHE_DIR"):
+            raise
+    folder = fallback_folder()
+    log.info("no writable cache beside the solver or in the home folder; "
+             "compiled code is kept in %s", folder)
+    os.environ["NUMBA_CACHE_DIR"] = folder
+    from numba.core import config
+    config.reload_config()          # numba reads NUMBA_CACHE_DIR when it is asked again
+    return importlib.import_module(COMPILED)

@@ -30,6 +30,7 @@ from cvxopt import lapack
 from solver.kernels import rbf_matrix
 from solver.qp import dual_certify as certify
 from solver.qp import smo_core
+from solver.qp.kernel_cache import KernelColumns
 
 log = logging.getLogger(__name__)
 
@@ -54,24 +55,31 @@ class FastSolution:
     optimal: bool
 
 
-def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None) -> FastSolution:
-    """The soft-margin RBF dual from alpha_start (feasible) or zero."""
+def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None) -> FastSolution:
+    """The soft-margin RBF dual from alpha_start (feasible) or zero.
+
+    ``columns`` (a KernelColumns of this kernel) is shared: the pair steps fill its
+    rows, the finish and a decomposition that follows read them.
+    """
     X = np.ascontiguousarray(X, dtype=float)
     y = np.ascontiguousarray(y, dtype=float)
     upper = np.ascontiguousarray(upper, dtype=float)
     n = len(y)
+    if columns is None:
+        columns = rbf_columns(X, gamma)
     alpha = np.zeros(n) if alpha_start is None else np.array(alpha_start, dtype=float)
-    F = _fresh_F(X, y, gamma, alpha)
-    cache = smo_core.new_cache(n, CACHE_BYTES)
+    F = _fresh_F(columns, y, alpha)
     steps, stage = 0, 0
     best = None
     for stage, eps in enumerate(VIOLATIONS, start=1):
         taken, violation = smo_core.smo_rbf(X, y, upper, gamma, alpha, F, eps,
-                                             STEP_LIMIT - steps, *cache)
+                                             STEP_LIMIT - steps, columns.store, columns.slot,
+                                             columns.owner, columns.stamp)
+        columns.clock = max(columns.clock, int(columns.stamp.max()))
         steps += int(taken)
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
-        _finish(X, y, upper, gamma, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS)
-        F = _fresh_F(X, y, gamma, alpha)              # certify on F computed afresh
+        _finish(columns, y, upper, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS)
+        F = _fresh_F(columns, y, alpha)               # certify on F computed afresh
         b, gap = _certificate(alpha, F, y, upper)
         log.debug("stage %d: eps %.0e, %d pair steps, violation %.1e, gap %.1e",
                   stage, eps, taken, violation, gap)
@@ -81,13 +89,18 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None) -> FastSolution:
     return best
 
 
-def _fresh_F(X, y, gamma, alpha):
-    """F = y - K (alpha * y) from the kernel itself."""
-    F = y.copy()
+def rbf_columns(X, gamma) -> KernelColumns:
+    """A kernel row cache of CACHE_BYTES for the RBF kernel on X."""
+    return KernelColumns(np.ascontiguousarray(X, dtype=float),
+                         lambda A, B: rbf_matrix(A, B, gamma), budget=CACHE_BYTES)
+
+
+def _fresh_F(columns, y, alpha):
+    """F = y - K (alpha * y), from kernel values rather than step-by-step updates."""
     support = np.flatnonzero(alpha > 0)
-    if len(support):
-        smo_core.rbf_product(X, gamma, support, alpha[support] * y[support], F)
-    return F
+    if not len(support):
+        return y.copy()
+    return y - columns.product(support, alpha[support] * y[support])
 
 
 def _certificate(alpha, F, y, upper):
@@ -97,7 +110,7 @@ def _certificate(alpha, F, y, upper):
     return b, certify.relative_gap(primal, dual)
 
 
-def _finish(X, y, upper, gamma, alpha, F, limit):
+def _finish(columns, y, upper, alpha, F, limit):
     """Active-set steps on the face the pair steps found (alpha and F in place).
 
     Each step solves the face system on the working free set S; when the
@@ -111,10 +124,10 @@ def _finish(X, y, upper, gamma, alpha, F, limit):
     scale = 1e-12 * max(1.0, float(np.abs(F).max()))
     for _ in range(limit):
         free = np.flatnonzero(S)
-        if len(free) > FACE_LIMIT:
+        if len(free) > min(FACE_LIMIT, columns.capacity):
             return False
         if len(free):
-            solved = _face_system(X, y, gamma, alpha, F, free)
+            solved = _face_system(columns, alpha @ y, F, free)
             if solved is None:
                 return False
             d, b = solved
@@ -122,7 +135,7 @@ def _finish(X, y, upper, gamma, alpha, F, limit):
             t, new, hit = _step_in_box(alpha[free], step, upper[free])
             change = (new - alpha[free]) * y[free]        # change of beta_S
             alpha[free] = new
-            smo_core.rbf_product(X, gamma, free, change, F)
+            F -= columns.product(free, change)
             if t < 1.0:
                 S[free[hit]] = False
                 continue
@@ -140,16 +153,35 @@ def _finish(X, y, upper, gamma, alpha, F, limit):
     return False
 
 
-def _face_system(X, y, gamma, alpha, F, free):
-    """(d, b) of [K_SS 1; 1' 0] [d; b] = [F_S; -sum(beta)], or None when it is singular."""
+def _face_system(columns, excess, F, free):
+    """(d, b) of [K_SS 1; 1' 0] [d; b] = [F_S; -excess], or None when it is singular.
+
+    By a Cholesky factor of K_SS (with d = K^-1 F_S - b K^-1 1 and b from the
+    last row), or, when K_SS is too near singular for one (a wide kernel), by a
+    Bunch-Kaufman factorisation of the whole bordered system.
+    """
     m = len(free)
+    K = columns.block(free)
+    factor = cvxopt.matrix(K)
+    try:
+        lapack.potrf(factor)
+        both = cvxopt.matrix(np.column_stack([F[free], np.ones(m)]))
+        lapack.potrs(factor, both)
+        u, v = np.array(both[:, 0]).ravel(), np.array(both[:, 1]).ravel()
+        b = (u.sum() + excess) / v.sum()
+        d = u - b * v
+        residual = np.abs(K @ d + b - F[free]).max(initial=0.0)
+        if np.isfinite(residual) and residual <= 1e-9 * max(1.0, np.abs(F[free]).max()):
+            return d, float(b)
+    except ArithmeticError:
+        pass
     system = np.empty((m + 1, m + 1))
-    system[:m, :m] = rbf_matrix(X[free], X[free], gamma)
+    system[:m, :m] = K
     system[:m, m] = system[m, :m] = 1.0
     system[m, m] = 0.0
     right = np.empty(m + 1)
     right[:m] = F[free]
-    right[m] = -float(alpha @ y)
+    right[m] = -excess
     matrix, solution = cvxopt.matrix(system), cvxopt.matrix(right)
     try:
         lapack.sysv(matrix, solution)

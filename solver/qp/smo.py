@@ -35,12 +35,12 @@ from solver.qp.kernel_cache import KernelColumns
 log = logging.getLogger(__name__)
 
 CACHE_BYTES = 200 * 2**20        # kernel rows kept, as the reference library's default
-VIOLATIONS = (1e-3, 1e-5, 1e-7, 1e-9)   # pair steps stop at these, one after another
+VIOLATIONS = (1e-3, 1e-4, 1e-6, 1e-9)   # pair steps stop at these, one after another
 FACE_LIMIT = 3_000               # free variables up to which the face system is solved
 STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together
 FACE_STEPS = 30                  # active-set steps after each stage of pair steps
 WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
-FEW_STEPS = 6
+FEW_STEPS = 10
 RELEASE = 8                      # bound variables released per step, at least
 
 

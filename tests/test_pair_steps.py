@@ -106,7 +106,7 @@ def test_shrinking_on_more_than_a_thousand_points_keeps_the_optimum(monkeypatch)
     X, y = _moons(1500, seed=4)
     calls = []
     solve = smo.solve_rbf
-    monkeypatch.setattr(smo, "solve_rbf", lambda *a: calls.append(solve(*a)) or calls[-1])
+    monkeypatch.setattr(smo, "solve_rbf", lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
     fast = _fit(X, y, 10.0, 2.0)
     assert calls and calls[-1].optimal                        # the fast path certified it
     monkeypatch.setattr(dual_solver, "_pair_steps",

@@ -55,11 +55,13 @@ class FastSolution:
     optimal: bool
 
 
-def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None) -> FastSolution:
+def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
+              stages=len(VIOLATIONS)) -> FastSolution:
     """The soft-margin RBF dual from alpha_start (feasible) or zero.
 
     ``columns`` (a KernelColumns of this kernel) is shared: the pair steps fill its
-    rows, the finish and a decomposition that follows read them.
+    rows, the finish and a decomposition that follows read them.  ``stages``: how many
+    of VIOLATIONS to go through before giving up.
     """
     X = np.ascontiguousarray(X, dtype=float)
     y = np.ascontiguousarray(y, dtype=float)
@@ -71,7 +73,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None) ->
     F = _fresh_F(columns, y, alpha)
     steps, stage = 0, 0
     best = None
-    for stage, eps in enumerate(VIOLATIONS, start=1):
+    for stage, eps in enumerate(VIOLATIONS[:stages], start=1):
         taken, violation = smo_core.smo_rbf(X, y, upper, gamma, alpha, F, eps,
                                              STEP_LIMIT - steps, columns.store, columns.slot,
                                              columns.owner, columns.stamp)

@@ -73,6 +73,13 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     F = _fresh_F(columns, y, alpha)
     steps, stage = 0, 0
     best = None
+    if alpha_start is not None:
+        # a warm start (C or gamma moved a little) is often a few face steps from the optimum
+        if _finish(columns, y, upper, alpha, F, FACE_STEPS):
+            F = _fresh_F(columns, y, alpha)
+            b, gap = _certificate(alpha, F, y, upper)
+            if gap <= gap_target:
+                return FastSolution(alpha, b, F, gap, 0, 0, True)
     for stage, eps in enumerate(VIOLATIONS[:stages], start=1):
         taken, violation = smo_core.smo_rbf(X, y, upper, gamma, alpha, F, eps,
                                              STEP_LIMIT - steps, columns.store, columns.slot,

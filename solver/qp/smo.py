@@ -43,6 +43,7 @@ FACE_STEPS = 30                  # active-set steps after each stage of pair ste
 WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
 FEW_STEPS = 10
 NEAR_BOUND = 1e-2                # see _step_in_box
+SHORT, SHORT_STEPS = 1e-2, 3     # face steps this short, this many in a row: back to pairs
 RELEASE = 16                     # bound variables released per face step, worst first
                                  # (a quarter of them at once: most bounced straight back)
 
@@ -147,6 +148,7 @@ def _face_steps(columns, y, upper, alpha, F, limit):
     """
     S = (alpha > 0) & (alpha < upper)
     scale = 1e-12 * max(1.0, float(np.abs(F).max()))
+    short = 0                 # steps in a row that went less than SHORT of the way
     for _ in range(limit):
         free = np.flatnonzero(S)
         if len(free) > min(FACE_LIMIT, columns.capacity):
@@ -163,6 +165,9 @@ def _face_steps(columns, y, upper, alpha, F, limit):
             F -= columns.product(free, change)
             if t < 1.0:
                 S[free[hit]] = False
+                short = short + 1 if t < SHORT else 0
+                if short >= SHORT_STEPS:
+                    return False     # the face is still far: more pair steps first
                 continue
         else:
             b = certify.intercept(F, y, upper, alpha)

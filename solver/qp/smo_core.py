@@ -34,19 +34,23 @@ TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
 
 
 @nb.njit(cache=True, nogil=True)
-def _rbf_row(X, i, gamma, out):
+def _rbf_row(X, i, gamma, out, act, m):
+    """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X))."""
     n, d = X.shape
-    for t in range(n):
+    for k in range(m):
+        t = act[k] if m < n else k
         s = 0.0
-        for k in range(d):
-            diff = X[t, k] - X[i, k]
+        for c in range(d):
+            diff = X[t, c] - X[i, c]
             s += diff * diff
         out[t] = math.exp(-gamma * s)
 
 
 @nb.njit(cache=True, nogil=True)
-def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock):
-    """The cache row holding k(x_i, .), computed into the least recently used slot on a miss."""
+def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m):
+    """The cache row holding k(x_i, .), computed into the least recently used slot on a
+    miss; while variables are left out (m < n) only the searched entries are computed
+    and the row is marked partial."""
     s = slot_of[i]
     if s < 0:
         s = 0
@@ -59,9 +63,23 @@ def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock):
             slot_of[owner[s]] = -1
         owner[s] = i
         slot_of[i] = s
-        _rbf_row(X, i, gamma, rows[s])
+        _rbf_row(X, i, gamma, rows[s], act, m)
+        partial[s] = m < len(X)
     stamp[s] = clock
     return s
+
+
+@nb.njit(cache=True, nogil=True)
+def _drop_partial(slot_of, owner, stamp, partial):
+    """Forget rows computed on part of the points (before all are searched again, and
+    before the rows are handed back to KernelColumns, which expects whole rows)."""
+    for s in range(len(owner)):
+        if partial[s]:
+            if owner[s] >= 0:
+                slot_of[owner[s]] = -1
+            owner[s] = -1
+            stamp[s] = 0
+            partial[s] = False
 
 
 @nb.njit(cache=True, nogil=True)
@@ -105,6 +123,7 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
     shrink_every = min(n, 1000)
     countdown = shrink_every
     clock = stamp.max() + 1
+    partial = np.zeros(len(owner), dtype=nb.boolean)
     steps = 0
     f_up, i, f_low = _extremes(F, act, m, up, low)
     while True:
@@ -113,12 +132,13 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
             if m == n or steps >= max_steps:
                 break
             _reconstruct(X, gamma, y, alpha, F, act, m)   # F afresh on the left-out ones
+            _drop_partial(slot_of, owner, stamp, partial)
             act = np.arange(n)
             m = n
             countdown = shrink_every
             f_up, i, f_low = _extremes(F, act, m, up, low)
             continue
-        si = _slot(i, X, gamma, rows, slot_of, owner, stamp, clock)
+        si = _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
         k_ii = row_i[i]
@@ -136,7 +156,7 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
                         best, j = score, t
         if j < 0:
             break
-        sj = _slot(j, X, gamma, rows, slot_of, owner, stamp, clock)
+        sj = _slot(j, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
         row_j = rows[sj]
@@ -177,6 +197,7 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
             m = _shrink(F, act, m, up, low, f_up, f_low)
     if m < n:
         _reconstruct(X, gamma, y, alpha, F, act, m)
+    _drop_partial(slot_of, owner, stamp, partial)
     return steps, violation
 
 

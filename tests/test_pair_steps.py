@@ -106,7 +106,7 @@ def test_shrinking_on_more_than_a_thousand_points_keeps_the_optimum(monkeypatch)
     X, y = _moons(1500, seed=4)
     calls = []
     solve = smo.solve_rbf
-    monkeypatch.setattr(smo, "solve_rbf", lambda *a: calls.append(solve(*a)) or calls[-1])
+    monkeypatch.setattr(smo, "solve_rbf", lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
     fast = _fit(X, y, 10.0, 2.0)
     assert calls and calls[-1].optimal                        # the fast path certified it
     monkeypatch.setattr(dual_solver, "_pair_steps",
@@ -137,3 +137,14 @@ def test_warm_starts_from_a_neighbouring_fit_reach_the_cold_optimum():
         assert warm.converged and warm.relative_gap <= 1e-8
         assert warm.dual_objective == pytest.approx(cold.dual_objective, rel=1e-9)
         np.testing.assert_allclose(warm.decision, cold.decision, atol=1e-6)
+
+
+def test_class_weights_match_the_reference_with_the_same_weights():
+    X, y = _blobs(400, seed=5)
+    result = fit(X, y, FitConfig(C=2.0, kernel="rbf", gamma=3.0, weight_positive=4.0,
+                                 weight_negative=0.5))
+    assert result.converged and result.relative_gap <= 1e-8
+    reference = SVC(C=2.0, gamma=3.0, tol=1e-10,                 # reference, tol 1e-10
+                    class_weight={1.0: 4.0, -1.0: 0.5}).fit(X, y)
+    np.testing.assert_allclose(result.decision, reference.decision_function(X), atol=1e-5)
+    assert result.alpha[y > 0].max() <= 8.0 and result.alpha[y < 0].max() <= 1.0

@@ -30,17 +30,22 @@ from cvxopt import lapack
 from solver.kernels import rbf_matrix
 from solver.qp import dual_certify as certify
 from solver.qp import smo_core
+from solver.qp.dual_start import feasible
+from solver.qp.kernel_cache import KernelColumns
 
 log = logging.getLogger(__name__)
 
 CACHE_BYTES = 200 * 2**20        # kernel rows kept, as the reference library's default
-VIOLATIONS = (1e-3, 1e-5, 1e-7, 1e-9)   # pair steps stop at these, one after another
+VIOLATIONS = (1e-3, 1e-4, 1e-6, 1e-9)   # pair steps stop at these, one after another
 FACE_LIMIT = 3_000               # free variables up to which the face system is solved
 STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together
 FACE_STEPS = 30                  # active-set steps after each stage of pair steps
 WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
-FEW_STEPS = 6
-RELEASE = 8                      # bound variables released per step, at least
+FEW_STEPS = 20
+NEAR_BOUND = 1e-2                # see _step_in_box
+SHORT, SHORT_STEPS = 1e-2, 3     # face steps this short, this many in a row: back to pairs
+RELEASE = 16                     # bound variables released per face step, worst first
+                                 # (a quarter of them at once: most bounced straight back)
 
 
 @dataclass(frozen=True)
@@ -54,24 +59,40 @@ class FastSolution:
     optimal: bool
 
 
-def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None) -> FastSolution:
-    """The soft-margin RBF dual from alpha_start (feasible) or zero."""
+def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
+              stages=len(VIOLATIONS)) -> FastSolution:
+    """The soft-margin RBF dual from alpha_start (feasible) or zero.
+
+    ``columns`` (a KernelColumns of this kernel) is shared: the pair steps fill its
+    rows, the finish and a decomposition that follows read them.  ``stages``: how many
+    of VIOLATIONS to go through before giving up.
+    """
     X = np.ascontiguousarray(X, dtype=float)
     y = np.ascontiguousarray(y, dtype=float)
     upper = np.ascontiguousarray(upper, dtype=float)
     n = len(y)
+    if columns is None:
+        columns = rbf_columns(X, gamma)
     alpha = np.zeros(n) if alpha_start is None else np.array(alpha_start, dtype=float)
-    F = _fresh_F(X, y, gamma, alpha)
-    cache = smo_core.new_cache(n, CACHE_BYTES)
+    F = _fresh_F(columns, y, alpha)
     steps, stage = 0, 0
     best = None
-    for stage, eps in enumerate(VIOLATIONS, start=1):
+    if alpha_start is not None:
+        # a warm start (C or gamma moved a little) is often a few face steps from the optimum
+        if _finish(columns, y, upper, alpha, F, FACE_STEPS):
+            F = _fresh_F(columns, y, alpha)
+            b, gap = _certificate(alpha, F, y, upper)
+            if gap <= gap_target:
+                return FastSolution(alpha, b, F, gap, 0, 0, True)
+    for stage, eps in enumerate(VIOLATIONS[:stages], start=1):
         taken, violation = smo_core.smo_rbf(X, y, upper, gamma, alpha, F, eps,
-                                             STEP_LIMIT - steps, *cache)
+                                             STEP_LIMIT - steps, columns.store, columns.slot,
+                                             columns.owner, columns.stamp)
+        columns.clock = max(columns.clock, int(columns.stamp.max()))
         steps += int(taken)
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
-        _finish(X, y, upper, gamma, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS)
-        F = _fresh_F(X, y, gamma, alpha)              # certify on F computed afresh
+        _finish(columns, y, upper, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS)
+        F = _fresh_F(columns, y, alpha)               # certify on F computed afresh
         b, gap = _certificate(alpha, F, y, upper)
         log.debug("stage %d: eps %.0e, %d pair steps, violation %.1e, gap %.1e",
                   stage, eps, taken, violation, gap)
@@ -81,13 +102,18 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None) -> FastSolution:
     return best
 
 
-def _fresh_F(X, y, gamma, alpha):
-    """F = y - K (alpha * y) from the kernel itself."""
-    F = y.copy()
+def rbf_columns(X, gamma) -> KernelColumns:
+    """A kernel row cache of CACHE_BYTES for the RBF kernel on X."""
+    return KernelColumns(np.ascontiguousarray(X, dtype=float),
+                         lambda A, B: rbf_matrix(A, B, gamma), budget=CACHE_BYTES)
+
+
+def _fresh_F(columns, y, alpha):
+    """F = y - K (alpha * y), from kernel values rather than step-by-step updates."""
     support = np.flatnonzero(alpha > 0)
-    if len(support):
-        smo_core.rbf_product(X, gamma, support, alpha[support] * y[support], F)
-    return F
+    if not len(support):
+        return y.copy()
+    return y - columns.product(support, alpha[support] * y[support])
 
 
 def _certificate(alpha, F, y, upper):
@@ -97,7 +123,20 @@ def _certificate(alpha, F, y, upper):
     return b, certify.relative_gap(primal, dual)
 
 
-def _finish(X, y, upper, gamma, alpha, F, limit):
+def _finish(columns, y, upper, alpha, F, limit):
+    """_face_steps, then y'a = 0 made exact again if dropping variables broke it."""
+    done = _face_steps(columns, y, upper, alpha, F, limit)
+    excess = float(alpha @ y)
+    if abs(excess) <= 1e-13 * max(1.0, float(alpha.sum())):
+        return done
+    repaired = feasible(alpha, y, -y * F)       # lowers the heavier class, least needed first
+    changed = np.flatnonzero(repaired != alpha)
+    F -= columns.product(changed, (repaired[changed] - alpha[changed]) * y[changed])
+    alpha[changed] = repaired[changed]
+    return False
+
+
+def _face_steps(columns, y, upper, alpha, F, limit):
     """Active-set steps on the face the pair steps found (alpha and F in place).
 
     Each step solves the face system on the working free set S; when the
@@ -109,12 +148,13 @@ def _finish(X, y, upper, gamma, alpha, F, limit):
     """
     S = (alpha > 0) & (alpha < upper)
     scale = 1e-12 * max(1.0, float(np.abs(F).max()))
+    short = 0                 # steps in a row that went less than SHORT of the way
     for _ in range(limit):
         free = np.flatnonzero(S)
-        if len(free) > FACE_LIMIT:
+        if len(free) > min(FACE_LIMIT, columns.capacity):
             return False
         if len(free):
-            solved = _face_system(X, y, gamma, alpha, F, free)
+            solved = _face_system(columns, alpha @ y, F, free)
             if solved is None:
                 return False
             d, b = solved
@@ -122,9 +162,12 @@ def _finish(X, y, upper, gamma, alpha, F, limit):
             t, new, hit = _step_in_box(alpha[free], step, upper[free])
             change = (new - alpha[free]) * y[free]        # change of beta_S
             alpha[free] = new
-            smo_core.rbf_product(X, gamma, free, change, F)
+            F -= columns.product(free, change)
             if t < 1.0:
                 S[free[hit]] = False
+                short = short + 1 if t < SHORT else 0
+                if short >= SHORT_STEPS:
+                    return False     # the face is still far: more pair steps first
                 continue
         else:
             b = certify.intercept(F, y, upper, alpha)
@@ -135,21 +178,40 @@ def _finish(X, y, upper, gamma, alpha, F, limit):
         count = int(np.count_nonzero(wrong))
         if not count:
             return True
-        release = np.argsort(-wrong, kind="stable")[:max(RELEASE, count // 4)]
+        release = np.argsort(-wrong, kind="stable")[:RELEASE]
         S[release[wrong[release] > 0]] = True
     return False
 
 
-def _face_system(X, y, gamma, alpha, F, free):
-    """(d, b) of [K_SS 1; 1' 0] [d; b] = [F_S; -sum(beta)], or None when it is singular."""
+def _face_system(columns, excess, F, free):
+    """(d, b) of [K_SS 1; 1' 0] [d; b] = [F_S; -excess], or None when it is singular.
+
+    By a Cholesky factor of K_SS (with d = K^-1 F_S - b K^-1 1 and b from the
+    last row), or, when K_SS is too near singular for one (a wide kernel), by a
+    Bunch-Kaufman factorisation of the whole bordered system.
+    """
     m = len(free)
+    K = columns.block(free)
+    factor = cvxopt.matrix(K)
+    try:
+        lapack.potrf(factor)
+        both = cvxopt.matrix(np.column_stack([F[free], np.ones(m)]))
+        lapack.potrs(factor, both)
+        u, v = np.array(both[:, 0]).ravel(), np.array(both[:, 1]).ravel()
+        b = (u.sum() + excess) / v.sum()
+        d = u - b * v
+        residual = np.abs(K @ d + b - F[free]).max(initial=0.0)
+        if np.isfinite(residual) and residual <= 1e-9 * max(1.0, np.abs(F[free]).max()):
+            return d, float(b)
+    except ArithmeticError:
+        pass
     system = np.empty((m + 1, m + 1))
-    system[:m, :m] = rbf_matrix(X[free], X[free], gamma)
+    system[:m, :m] = K
     system[:m, m] = system[m, :m] = 1.0
     system[m, m] = 0.0
     right = np.empty(m + 1)
     right[:m] = F[free]
-    right[m] = -float(alpha @ y)
+    right[m] = -excess
     matrix, solution = cvxopt.matrix(system), cvxopt.matrix(right)
     try:
         lapack.sysv(matrix, solution)
@@ -162,8 +224,16 @@ def _face_system(X, y, gamma, alpha, F, free):
 
 
 def _step_in_box(a, step, cap):
-    """(t, a + t step with hits put exactly on their bound, hit) for the largest t <= 1
-    keeping 0 <= a + t step <= cap."""
+    """(t, new, dropped) for the largest t <= 1 keeping 0 <= a + t step <= cap.
+
+    The variables that reach a bound at t are put exactly on it and dropped;
+    so are those the full step would push out of the box that already sit
+    within NEAR_BOUND * C of that bound (pair steps leave many such a hair
+    off their bound, and one face step per variable would crawl).  Moving those
+    breaks y'a = 0 a little, which the next face system restores (and _finish
+    before it returns).  (Dropping every variable pushed out when the step is
+    short made fits up to 7x slower: true free ones went and came back.)
+    """
     target = a + step
     below, above = target < 0, target > cap
     if not (below.any() or above.any()):
@@ -173,8 +243,8 @@ def _step_in_box(a, step, cap):
         t_high = np.where(above, (cap - a) / step, np.inf)
     t = float(min(t_low.min(), t_high.min(), 1.0))
     new = np.clip(a + t * step, 0.0, cap)
-    hit_low = below & (t_low <= t * (1 + 1e-12))
-    hit_high = above & (t_high <= t * (1 + 1e-12))
-    new[hit_low] = 0.0
-    new[hit_high] = cap[hit_high]
-    return t, new, hit_low | hit_high
+    to_low = below & ((t_low <= t * (1 + 1e-12)) | (a <= NEAR_BOUND * cap))
+    to_high = above & ((t_high <= t * (1 + 1e-12)) | (a >= (1 - NEAR_BOUND) * cap))
+    new[to_low] = 0.0
+    new[to_high] = cap[to_high]
+    return t, new, to_low | to_high

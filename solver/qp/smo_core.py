@@ -34,19 +34,23 @@ TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
 
 
 @nb.njit(cache=True, nogil=True)
-def _rbf_row(X, i, gamma, out):
+def _rbf_row(X, i, gamma, out, act, m):
+    """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X))."""
     n, d = X.shape
-    for t in range(n):
+    for k in range(m):
+        t = act[k] if m < n else k
         s = 0.0
-        for k in range(d):
-            diff = X[t, k] - X[i, k]
+        for c in range(d):
+            diff = X[t, c] - X[i, c]
             s += diff * diff
         out[t] = math.exp(-gamma * s)
 
 
 @nb.njit(cache=True, nogil=True)
-def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock):
-    """The cache row holding k(x_i, .), computed into the least recently used slot on a miss."""
+def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m):
+    """The cache row holding k(x_i, .), computed into the least recently used slot on a
+    miss; while variables are left out (m < n) only the searched entries are computed
+    and the row is marked partial."""
     s = slot_of[i]
     if s < 0:
         s = 0
@@ -59,9 +63,47 @@ def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock):
             slot_of[owner[s]] = -1
         owner[s] = i
         slot_of[i] = s
-        _rbf_row(X, i, gamma, rows[s])
+        _rbf_row(X, i, gamma, rows[s], act, m)
+        partial[s] = m < len(X)
     stamp[s] = clock
     return s
+
+
+@nb.njit(cache=True, nogil=True)
+def _drop_partial(slot_of, owner, stamp, partial):
+    """Forget rows computed on part of the points (before all are searched again, and
+    before the rows are handed back to KernelColumns, which expects whole rows)."""
+    for s in range(len(owner)):
+        if partial[s]:
+            if owner[s] >= 0:
+                slot_of[owner[s]] = -1
+            owner[s] = -1
+            stamp[s] = 0
+            partial[s] = False
+
+
+@nb.njit(cache=True, nogil=True)
+def _sides(y, C, alpha, t, up, low):
+    """Whether a_t y_t can grow (up) and shrink (low)."""
+    if y[t] > 0:
+        up[t] = alpha[t] < C[t]
+        low[t] = alpha[t] > 0
+    else:
+        up[t] = alpha[t] > 0
+        low[t] = alpha[t] < C[t]
+
+
+@nb.njit(cache=True, nogil=True)
+def _extremes(F, act, m, up, low):
+    """(largest F over up, its index, smallest F over low) on act[:m]."""
+    f_up, i, f_low = -np.inf, -1, np.inf
+    for k in range(m):
+        t = act[k]
+        if up[t] and F[t] > f_up:
+            f_up, i = F[t], t
+        if low[t] and F[t] < f_low:
+            f_low = F[t]
+    return f_up, i, f_low
 
 
 @nb.njit(cache=True, nogil=True)
@@ -72,42 +114,38 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
     Returns (steps, violation).
     """
     n = len(y)
+    up = np.zeros(n, dtype=nb.boolean)
+    low = np.zeros(n, dtype=nb.boolean)
+    for t in range(n):
+        _sides(y, C, alpha, t, up, low)
     act = np.arange(n)                 # the variables searched and updated: act[:m]
     m = n
     shrink_every = min(n, 1000)
     countdown = shrink_every
     clock = stamp.max() + 1
+    partial = np.zeros(len(owner), dtype=nb.boolean)
     steps = 0
-    violation = np.inf
-    while steps < max_steps:
-        # i: the largest F among "up"; also the smallest F among "low"
-        f_up, i = -np.inf, -1
-        f_low = np.inf
-        for k in range(m):
-            t = act[k]
-            if (y[t] > 0 and alpha[t] < C[t]) or (y[t] < 0 and alpha[t] > 0):
-                if F[t] > f_up:
-                    f_up, i = F[t], t
-            if (y[t] > 0 and alpha[t] > 0) or (y[t] < 0 and alpha[t] < C[t]):
-                if F[t] < f_low:
-                    f_low = F[t]
+    f_up, i, f_low = _extremes(F, act, m, up, low)
+    while True:
         violation = f_up - f_low
-        if i < 0 or violation <= eps:
-            if m == n:
+        if i < 0 or violation <= eps or steps >= max_steps:
+            if m == n or steps >= max_steps:
                 break
             _reconstruct(X, gamma, y, alpha, F, act, m)   # F afresh on the left-out ones
+            _drop_partial(slot_of, owner, stamp, partial)
             act = np.arange(n)
             m = n
             countdown = shrink_every
+            f_up, i, f_low = _extremes(F, act, m, up, low)
             continue
-        si = _slot(i, X, gamma, rows, slot_of, owner, stamp, clock)
+        si = _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
         k_ii = row_i[i]
         best, j = 0.0, -1
         for k in range(m):
             t = act[k]
-            if (y[t] > 0 and alpha[t] > 0) or (y[t] < 0 and alpha[t] < C[t]):
+            if low[t]:
                 gain = f_up - F[t]
                 if gain > 0.0:
                     curvature = k_ii + 1.0 - 2.0 * row_i[t]   # k_tt = 1 for the RBF kernel
@@ -118,7 +156,7 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
                         best, j = score, t
         if j < 0:
             break
-        sj = _slot(j, X, gamma, rows, slot_of, owner, stamp, clock)
+        sj = _slot(j, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
         row_j = rows[sj]
@@ -140,37 +178,38 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
             alpha[j] = 0.0 if step == alpha[j] else max(alpha[j] - step, 0.0)
         else:
             alpha[j] = C[j] if step == C[j] - alpha[j] else min(alpha[j] + step, C[j])
+        _sides(y, C, alpha, i, up, low)
+        _sides(y, C, alpha, j, up, low)
+        # update F and find the next extremes in one pass
+        f_up, i, f_low = -np.inf, -1, np.inf
         for k in range(m):
             t = act[k]
-            F[t] -= step * (row_i[t] - row_j[t])
+            value = F[t] - step * (row_i[t] - row_j[t])
+            F[t] = value
+            if up[t] and value > f_up:
+                f_up, i = value, t
+            if low[t] and value < f_low:
+                f_low = value
         steps += 1
         countdown -= 1
         if countdown <= 0:
             countdown = shrink_every
-            m = _shrink(y, C, alpha, F, act, m)
+            m = _shrink(F, act, m, up, low, f_up, f_low)
     if m < n:
         _reconstruct(X, gamma, y, alpha, F, act, m)
+    _drop_partial(slot_of, owner, stamp, partial)
     return steps, violation
 
 
 @nb.njit(cache=True, nogil=True)
-def _shrink(y, C, alpha, F, act, m):
+def _shrink(F, act, m, up, low, f_up, f_low):
     """Leave out bound variables that cannot be chosen soon: an "up"-only one whose F is
     below every "low" F, a "low"-only one whose F is above every "up" F.  act[:m] is
     compacted in place and the new m returned."""
-    f_up, f_low = -np.inf, np.inf
-    for k in range(m):
-        t = act[k]
-        if ((y[t] > 0 and alpha[t] < C[t]) or (y[t] < 0 and alpha[t] > 0)) and F[t] > f_up:
-            f_up = F[t]
-        if ((y[t] > 0 and alpha[t] > 0) or (y[t] < 0 and alpha[t] < C[t])) and F[t] < f_low:
-            f_low = F[t]
     kept = 0
     for k in range(m):
         t = act[k]
-        up = (y[t] > 0 and alpha[t] < C[t]) or (y[t] < 0 and alpha[t] > 0)
-        low = (y[t] > 0 and alpha[t] > 0) or (y[t] < 0 and alpha[t] < C[t])
-        if (up and not low and F[t] < f_low) or (low and not up and F[t] > f_up):
+        if (up[t] and not low[t] and F[t] < f_low) or (low[t] and not up[t] and F[t] > f_up):
             continue
         act[kept] = t
         kept += 1

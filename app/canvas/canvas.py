@@ -229,7 +229,12 @@ class Canvas(pg.PlotWidget):
 
     def _show_stale(self, stale: bool):
         if stale:
-            self._stale.setText("showing the last good fit \u2014 see the status bar")
+            result = self.document.result
+            if result is not None and not result.converged:   # a failed solve's best iterate
+                self._stale.setText("not converged: the solver's last iterate, not an optimal "
+                                    "fit \u2014 see the status bar")
+            else:
+                self._stale.setText("showing the last good fit \u2014 see the status bar")
             self._stale.adjustSize()
             self._place_stale()
             self._stale.show()

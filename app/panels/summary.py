@@ -102,13 +102,17 @@ class Summary(QWidget):
         set_("penalty", number(result.penalty_term))
         set_("gap", f"{result.duality_gap:.2e}")
         set_("time", f"{result.seconds * 1e3:.1f} ms, {result.iterations} iterations")
-        if doc.result_is_stale:
+        if doc.result_is_stale and not result.converged:
+            self.values["state"].setText(
+                "<b style='color:#8a5a00'>not converged</b>: these figures are the solver's "
+                f"last iterate, not an optimal fit \u2014 {doc.last_error}")
+        elif doc.result_is_stale:
             self.values["state"].setText(
                 "<b style='color:#8a5a00'>stale</b>: the last good fit; the current "
                 f"points or settings could not be fitted \u2014 {doc.last_error}")
         else:
             C = "hard margin" if result.config.hard_margin else f"C = {number(result.config.C)}"
-            self.values["state"].setText(f"current: {result.config.kernel}, {C}")
+            self.values["state"].setText(f"current: {result.config.kernel_spec.title}, {C}")
 
 
 def _heldout_lines(document):

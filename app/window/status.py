@@ -114,6 +114,8 @@ class StatusReadouts:
         if word == "stale":
             short = "last solve failed" if doc.last_error else "points or settings changed"
             state = f"<b style='color:#8a5a00'>stale</b> ({short})"
+            if doc.result is not None and not doc.result.converged:
+                state = "<b style='color:#8a5a00'>not converged</b> (its last iterate shown)"
         else:
             state = shown[word]
         self.fit_state.setText(f"{text} \u00b7 {state}")

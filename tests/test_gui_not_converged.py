@@ -75,4 +75,8 @@ def test_a_gamma_step_that_stops_short_keeps_the_last_good_fit_and_says_so(windo
     canvas, summary, status = _words_on_screen(window)
     assert canvas.startswith("showing the last good fit")
     assert "stale" in summary and "stale" in status and "last solve failed" in status
-    assert window.statusBar().currentMessage() == STOPPED
+    shown = window.statusBar().currentMessage()
+    assert shown.endswith("\u2026") and STOPPED.startswith(shown[:-1])    # cut with an ellipsis
+    assert window.statusBar().toolTip() == STOPPED                          # all of it here
+    bar = window.statusBar()
+    assert bar.fontMetrics().horizontalAdvance(shown) <= bar.width() - window.status.fit_state.width()

@@ -7,7 +7,7 @@ current" whose last word is the state: current, solving, or stale with why.
 
 from __future__ import annotations
 
-from PySide6.QtCore import QEvent, QObject
+from PySide6.QtCore import QEvent, QObject, Qt
 from PySide6.QtWidgets import QLabel, QProgressBar
 
 from app.document.document import CONFIG, ERROR, PINNED, POINTS, RESULT
@@ -123,11 +123,19 @@ class StatusReadouts:
         bar = self.window.statusBar()
         if word == "current" and self._failure and bar.currentMessage() == self._failure:
             bar.clearMessage()
+            bar.setToolTip("")
         self._show_cursor()
 
     def _failed(self, message: str):
-        self._failure = message
-        self.window.statusBar().showMessage(message)
+        """The reason in the room left of the read-outs, cut with an ellipsis (not mid-word
+        off the edge); all of it in the bar's tooltip and in the Summary."""
+        bar = self.window.statusBar()
+        room = bar.width() - sum(w.sizeHint().width() for w in
+                                 (self.cursor, self.fit_state, self.busy_indicator)) - 48
+        shown = bar.fontMetrics().elidedText(message, Qt.ElideRight, max(room, 160))
+        self._failure = shown
+        bar.setToolTip(message)
+        bar.showMessage(shown)
 
     def _busy(self, busy: bool):
         self.busy_indicator.setVisible(busy)

@@ -10,14 +10,16 @@ point, the correction from the current point needs no other kernel block:
     [K_SS  1] [d]   [F_S        ]
     [1'    0] [b] = [-sum(beta) ]         beta_S <- beta_S + d.
 
-When the corrected alphas stay inside their box the face was right; when
-not, the step stops at the first bound reached and more pair steps follow at
-a tighter violation.  Every candidate is judged on the whole problem, on F
-computed afresh from the kernel, by the relative duality gap of
-``dual_certify``; the fast path gives up (returns None with its best alpha)
-rather than report a point that does not pass.
+The finish is a primal active-set method on these systems (``_face_steps``):
+when the corrected alphas leave the box the step stops at the first bound and
+drops what reached one; when they stay inside, bound variables on the wrong
+side of b are released, worst first.  Pair steps run in stages of tighter
+violation (VIOLATIONS), each followed by a finish.  Every candidate is judged
+on the whole problem, on F computed afresh from kernel values, by the
+relative duality gap of ``dual_certify`` and by y'a = 0; the result says
+``optimal`` only when both pass, and otherwise carries its best alpha for the
+decomposition (``dual_solver``) to continue from.
 """
-
 from __future__ import annotations
 
 import logging
@@ -82,7 +84,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
         if _finish(columns, y, upper, alpha, F, FACE_STEPS):
             F = _fresh_F(columns, y, alpha)
             b, gap = _certificate(alpha, F, y, upper)
-            if gap <= gap_target:
+            if gap <= gap_target and _balanced(alpha, y):
                 return FastSolution(alpha, b, F, gap, 0, 0, True)
     for stage, eps in enumerate(VIOLATIONS[:stages], start=1):
         taken, violation = smo_core.smo_rbf(X, y, upper, gamma, alpha, F, eps,
@@ -96,7 +98,8 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
         b, gap = _certificate(alpha, F, y, upper)
         log.debug("stage %d: eps %.0e, %d pair steps, violation %.1e, gap %.1e",
                   stage, eps, taken, violation, gap)
-        best = FastSolution(alpha.copy(), b, F.copy(), gap, steps, stage, gap <= gap_target)
+        best = FastSolution(alpha.copy(), b, F.copy(), gap, steps, stage,
+                            gap <= gap_target and _balanced(alpha, y))
         if best.optimal or steps >= STEP_LIMIT:
             break
     return best
@@ -116,6 +119,11 @@ def _fresh_F(columns, y, alpha):
     return y - columns.product(support, alpha[support] * y[support])
 
 
+def _balanced(alpha, y) -> bool:
+    """y'a = 0 up to rounding: D(a) bounds the optimum from below only then."""
+    return abs(float(alpha @ y)) <= 1e-12 * max(1.0, float(alpha.sum()))
+
+
 def _certificate(alpha, F, y, upper):
     b = certify.intercept(F, y, upper, alpha)
     gradient = -y * F                                  # g = Qa - 1 = -y F
@@ -126,8 +134,7 @@ def _certificate(alpha, F, y, upper):
 def _finish(columns, y, upper, alpha, F, limit):
     """_face_steps, then y'a = 0 made exact again if dropping variables broke it."""
     done = _face_steps(columns, y, upper, alpha, F, limit)
-    excess = float(alpha @ y)
-    if abs(excess) <= 1e-13 * max(1.0, float(alpha.sum())):
+    if _balanced(alpha, y):
         return done
     repaired = feasible(alpha, y, -y * F)       # lowers the heavier class, least needed first
     changed = np.flatnonzero(repaired != alpha)

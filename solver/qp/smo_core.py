@@ -14,9 +14,10 @@ information, the largest gain (F_i - F_t)^2 / (k_ii + k_tt - 2 k_it) among
 "low" (Fan, Chen & Lin, "Working Set Selection Using Second Order
 Information for Training SVM", JMLR 6, 2005).  Variables at a bound that are
 far from violating are left out of the search for a while (shrinking,
-Joachims 1999); F is kept exact on every point, so they are checked again at
-no cost before the loop ends.  Kernel rows come from a least-recently-used
-cache of full rows.
+Joachims 1999); before the loop ends their F is computed afresh and they are
+checked again.  Kernel rows live in the arrays of a ``KernelColumns`` (least
+recently used first out); a row computed while variables are left out holds
+only the searched entries and is forgotten before the others come back.
 
 This is a first-order method: it stops at a violation ``eps`` and
 ``smo.py`` finishes exactly on the face it found.  numba compiles it once
@@ -236,26 +237,3 @@ def _reconstruct(X, gamma, y, alpha, F, act, m):
                 q += diff * diff
             s += alpha[j] * y[j] * math.exp(-gamma * q)
         F[t] = y[t] - s
-
-
-@nb.njit(cache=True, nogil=True)
-def rbf_product(X, gamma, columns, weights, out):
-    """out -= K[:, columns] @ weights, row by row, without storing K."""
-    n, d = X.shape
-    for t in range(n):
-        s = 0.0
-        for c in range(len(columns)):
-            j = columns[c]
-            q = 0.0
-            for k in range(d):
-                diff = X[t, k] - X[j, k]
-                q += diff * diff
-            s += weights[c] * math.exp(-gamma * q)
-        out[t] -= s
-
-
-def new_cache(n: int, budget_bytes: int):
-    """Arrays of an empty row cache for n points within budget_bytes."""
-    slots = int(max(2, min(n, budget_bytes // (8 * max(n, 1)))))
-    return (np.empty((slots, n)), np.full(n, -1, dtype=np.int64),
-            np.full(slots, -1, dtype=np.int64), np.zeros(slots, dtype=np.int64))

@@ -73,7 +73,7 @@ def test_fast_path_and_decomposition_reach_the_same_optimum(gamma, C, monkeypatc
     fast = _fit(X, y, C, gamma)
     with monkeypatch.context() as patch:
         patch.setattr(dual_solver, "_pair_steps",
-                      lambda X, y, upper, gamma, margin, start: (None, start))
+                      lambda *args, **kw: (None, args[5]))
         slow = _fit(X, y, C, gamma)
     assert slow.rounds >= 1 and fast.converged and slow.converged
     assert fast.dual_objective == pytest.approx(slow.dual_objective, rel=1e-9)
@@ -106,11 +106,12 @@ def test_shrinking_on_more_than_a_thousand_points_keeps_the_optimum(monkeypatch)
     X, y = _moons(1500, seed=4)
     calls = []
     solve = smo.solve_rbf
-    monkeypatch.setattr(smo, "solve_rbf", lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
+    monkeypatch.setattr(smo, "solve_rbf",
+                        lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
     fast = _fit(X, y, 10.0, 2.0)
     assert calls and calls[-1].optimal                        # the fast path certified it
     monkeypatch.setattr(dual_solver, "_pair_steps",
-                        lambda X, y, upper, gamma, margin, start: (None, start))
+                        lambda *args, **kw: (None, args[5]))
     slow = _fit(X, y, 10.0, 2.0)
     assert fast.dual_objective == pytest.approx(slow.dual_objective, rel=1e-9)
     np.testing.assert_allclose(fast.decision, slow.decision, atol=1e-6)

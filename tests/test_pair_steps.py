@@ -149,3 +149,19 @@ def test_class_weights_match_the_reference_with_the_same_weights():
                     class_weight={1.0: 4.0, -1.0: 0.5}).fit(X, y)
     np.testing.assert_allclose(result.decision, reference.decision_function(X), atol=1e-5)
     assert result.alpha[y > 0].max() <= 8.0 and result.alpha[y < 0].max() <= 1.0
+
+
+def test_a_huge_C_hands_over_to_the_decomposition_and_stays_exact(monkeypatch):
+    """C = 1e6 is nearly a hard margin: pair steps would need millions of steps;
+    past STEPS_PER_POINT per point the decomposition finishes from their point."""
+    calls = []
+    solve = smo.solve_rbf
+    monkeypatch.setattr(smo, "solve_rbf",
+                        lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
+    X, y = _moons(300)
+    result = _fit(X, y, 1e6, 1.0)
+    assert calls and not calls[-1].optimal and calls[-1].steps <= smo.STEPS_PER_POINT * 300
+    assert result.converged and result.relative_gap <= 1e-8
+    margin = y * result.decision                              # KKT written out
+    assert (margin[result.alpha == 0] >= 1 - 1e-6).all()
+    assert abs(float(result.alpha @ y)) <= 1e-6

@@ -40,7 +40,10 @@ log = logging.getLogger(__name__)
 CACHE_BYTES = 200 * 2**20        # kernel rows kept, as the reference library's default
 VIOLATIONS = (1e-3, 1e-4, 1e-6, 1e-9)   # pair steps stop at these, one after another
 FACE_LIMIT = 3_000               # free variables up to which the face system is solved
-STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together
+STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together, at most
+STEPS_PER_POINT = 300            # ... and at most this many per point: past it (huge C,
+                                 # a nearly hard margin) the decomposition's rounds do
+                                 # better (measured: C = 1e6 on 300 points 1.2 s -> 41 ms)
 FACE_STEPS = 30                  # active-set steps after each stage of pair steps
 WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
 FEW_STEPS = 20
@@ -78,6 +81,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     alpha = np.zeros(n) if alpha_start is None else np.array(alpha_start, dtype=float)
     F = _fresh_F(columns, y, alpha)
     steps, stage = 0, 0
+    limit = min(STEP_LIMIT, STEPS_PER_POINT * n)
     best = None
     if alpha_start is not None:
         # a warm start (C or gamma moved a little) is often a few face steps from the optimum
@@ -88,7 +92,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
                 return FastSolution(alpha, b, F, gap, 0, 0, True)
     for stage, eps in enumerate(VIOLATIONS[:stages], start=1):
         taken, violation = smo_core.smo_rbf(X, y, upper, gamma, alpha, F, eps,
-                                             STEP_LIMIT - steps, columns.store, columns.slot,
+                                             limit - steps, columns.store, columns.slot,
                                              columns.owner, columns.stamp)
         columns.clock = max(columns.clock, int(columns.stamp.max()))
         steps += int(taken)
@@ -100,7 +104,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
                   stage, eps, taken, violation, gap)
         best = FastSolution(alpha.copy(), b, F.copy(), gap, steps, stage,
                             gap <= gap_target and _balanced(alpha, y))
-        if best.optimal or steps >= STEP_LIMIT:
+        if best.optimal or steps >= limit:
             break
     return best
 

@@ -91,11 +91,9 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
             if gap <= gap_target and _balanced(alpha, y):
                 return FastSolution(alpha, b, F, gap, 0, 0, True)
     for stage, eps in enumerate(VIOLATIONS[:stages], start=1):
-        taken, violation = smo_core.smo_rbf(X, y, upper, gamma, alpha, F, eps,
-                                             limit - steps, columns.store, columns.slot,
-                                             columns.owner, columns.stamp)
-        columns.clock = max(columns.clock, int(columns.stamp.max()))
-        steps += int(taken)
+        taken, violation, F = _pair_steps(X, y, upper, gamma, alpha, F, eps, limit - steps,
+                                          columns)
+        steps += taken
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
         _finish(columns, y, upper, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS)
         F = _fresh_F(columns, y, alpha)               # certify on F computed afresh
@@ -107,6 +105,24 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
         if best.optimal or steps >= limit:
             break
     return best
+
+
+def _pair_steps(X, y, upper, gamma, alpha, F, eps, budget, columns):
+    """(steps, violation, F): pair steps until the violation over all points is <= eps
+    (each time the searched ones meet it, F is computed afresh and all are checked)."""
+    taken = 0
+    while True:
+        steps, violation, left_out = smo_core.smo_rbf(
+            X, y, upper, gamma, alpha, F, eps, budget - taken,
+            columns.store, columns.slot, columns.owner, columns.stamp)
+        columns.clock = max(columns.clock, int(columns.stamp.max()))
+        taken += int(steps)
+        if not left_out:
+            return taken, violation, F
+        F = _fresh_F(columns, y, alpha)
+        violation = certify.violation(F, y, alpha, upper)
+        if violation <= eps or taken >= budget:
+            return taken, violation, F
 
 
 def rbf_columns(X, gamma) -> KernelColumns:

@@ -123,7 +123,7 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
         _sides(y, C, alpha, t, up, low)
     act = np.arange(n)                 # the variables searched and updated: act[:m]
     m = n
-    shrink_every = min(n, 1000)
+    shrink_every = min(n, 200)
     countdown = shrink_every
     clock = stamp.max() + 1
     partial = np.zeros(len(owner), dtype=nb.boolean)

@@ -16,11 +16,16 @@ Environment (to shrink the grid for a quick look):
   KERNEL_BENCH_CS       e.g. "1" (default "1,100")
   KERNEL_BENCH_LARGE_SHAPES  shapes run at n > 1,000 (default "blobs": the narrow-kernel
                         cells at n = 10,000 take minutes)
+  KERNEL_BENCH_PROFILE  "1": after each cell short of its target (n = 1,000: ratio
+                        below 0.5; larger n: below 1), the top of a cProfile of our fit
 """
 
 from __future__ import annotations
 
+import cProfile
+import io
 import os
+import pstats
 import resource
 import statistics
 import time
@@ -103,7 +108,21 @@ def cell(name, n, gamma, C):
     print(f"{name:<8} {n:>6,} {gamma:>5g} {C:>5g} {ours * 1e3:>9.1f} {theirs * 1e3:>9.1f} "
           f"{theirs / ours:>6.2f} {d_ours:>15.8f} {d_svc:>15.8f} {gap:>8.1e} {rounds:>4} {note}",
           flush=True)
+    if os.environ.get("KERNEL_BENCH_PROFILE") == "1" and theirs / ours < (0.5 if n <= 1_000 else 1.0):
+        _profile(X, y, config)
     return theirs / ours
+
+
+def _profile(X, y, config, top=8):
+    profiler = cProfile.Profile()
+    profiler.runcall(_ours, X, y, config)
+    text = io.StringIO()
+    pstats.Stats(profiler, stream=text).sort_stats("tottime").print_stats(top)
+    lines = [line for line in text.getvalue().splitlines() if line.strip()]
+    start = next((k for k, line in enumerate(lines) if "ncalls" in line), 0)
+    print("    profile (own time):")
+    for line in lines[start:start + top + 1]:
+        print("    " + line)
 
 
 def warm_steps(name="blobs", n=1_000, steps=5):

@@ -73,7 +73,7 @@ def test_fast_path_and_decomposition_reach_the_same_optimum(gamma, C, monkeypatc
     fast = _fit(X, y, C, gamma)
     with monkeypatch.context() as patch:
         patch.setattr(dual_solver, "_pair_steps",
-                      lambda X, y, upper, gamma, margin, start: (None, start))
+                      lambda *args, **kw: (None, args[5]))
         slow = _fit(X, y, C, gamma)
     assert slow.rounds >= 1 and fast.converged and slow.converged
     assert fast.dual_objective == pytest.approx(slow.dual_objective, rel=1e-9)
@@ -106,11 +106,12 @@ def test_shrinking_on_more_than_a_thousand_points_keeps_the_optimum(monkeypatch)
     X, y = _moons(1500, seed=4)
     calls = []
     solve = smo.solve_rbf
-    monkeypatch.setattr(smo, "solve_rbf", lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
+    monkeypatch.setattr(smo, "solve_rbf",
+                        lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
     fast = _fit(X, y, 10.0, 2.0)
     assert calls and calls[-1].optimal                        # the fast path certified it
     monkeypatch.setattr(dual_solver, "_pair_steps",
-                        lambda X, y, upper, gamma, margin, start: (None, start))
+                        lambda *args, **kw: (None, args[5]))
     slow = _fit(X, y, 10.0, 2.0)
     assert fast.dual_objective == pytest.approx(slow.dual_objective, rel=1e-9)
     np.testing.assert_allclose(fast.decision, slow.decision, atol=1e-6)
@@ -148,3 +149,19 @@ def test_class_weights_match_the_reference_with_the_same_weights():
                     class_weight={1.0: 4.0, -1.0: 0.5}).fit(X, y)
     np.testing.assert_allclose(result.decision, reference.decision_function(X), atol=1e-5)
     assert result.alpha[y > 0].max() <= 8.0 and result.alpha[y < 0].max() <= 1.0
+
+
+def test_a_huge_C_hands_over_to_the_decomposition_and_stays_exact(monkeypatch):
+    """C = 1e6 is nearly a hard margin: pair steps would need millions of steps;
+    past STEPS_PER_POINT per point the decomposition finishes from their point."""
+    calls = []
+    solve = smo.solve_rbf
+    monkeypatch.setattr(smo, "solve_rbf",
+                        lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
+    X, y = _moons(300)
+    result = _fit(X, y, 1e6, 1.0)
+    assert calls and not calls[-1].optimal and calls[-1].steps <= smo.STEPS_PER_POINT * 300
+    assert result.converged and result.relative_gap <= 1e-8
+    margin = y * result.decision                              # KKT written out
+    assert (margin[result.alpha == 0] >= 1 - 1e-6).all()
+    assert abs(float(result.alpha @ y)) <= 1e-6

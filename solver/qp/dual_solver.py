@@ -60,8 +60,7 @@ LOW_RANK = 200
 LOW_RANK_TOL = 1e-7
 LOW_RANK_RELTOL = 1e-4
 POOR_RESIDUAL = 0.9      # largest residual k(x, x) of the factor that still guides well
-POOR = object()
-PAIR_STEPS_ALL_STAGES = 2_000   # points up to which the pair steps go through every stage          # the low-rank guess would be poor
+POOR = object()          # the low-rank guess would be poor
 
 
 def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
@@ -79,14 +78,18 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
     """
     with _BLAS.limit(limits=1, user_api="blas"):
         if rbf_gamma is not None and np.isfinite(penalties).all():
+            # one row cache for the pair steps and, if they do not certify, the rounds
+            columns = smo.rbf_columns(X, rbf_gamma)
             fast, alpha_start = _pair_steps(X, y, penalties, rbf_gamma, guess_margin,
-                                            alpha_start)
+                                            alpha_start, columns=columns)
             if fast is not None:
                 return fast
+            return _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin,
+                               alpha_start, columns)
         return _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start)
 
 
-def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start):
+def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start, columns=None):
     """(solution, None) when the pair steps certify the whole problem, else (None, their
     best alpha) for the decomposition to continue from."""
     y = np.asarray(y, dtype=float)
@@ -94,10 +97,7 @@ def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start):
     if alpha_start is not None:
         margin = guess_margin if guess_margin is not None else np.zeros(len(y))
         start = feasible(np.clip(alpha_start, 0.0, upper), y, margin)
-    # on many points the last, tight stages of pair steps cost more than the
-    # decomposition's rounds from where the first two left off
-    stages = len(smo.VIOLATIONS) if len(y) <= PAIR_STEPS_ALL_STAGES else 2
-    found = smo.solve_rbf(X, y, upper, gamma, GAP_TARGET, start, stages=stages)
+    found = smo.solve_rbf(X, y, upper, gamma, GAP_TARGET, start, columns)
     if not found.optimal:
         log.debug("pair steps stopped at gap %.1e: the decomposition goes on", found.gap)
         return None, found.alpha
@@ -108,14 +108,16 @@ def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start):
                         "optimal", found.gap, quadratic=quadratic), None
 
 
-def _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start):
+def _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start,
+                columns=None):
     y = np.asarray(y, dtype=float)
     n = len(y)
     hard = bool(np.isinf(penalties).all())
     if hard:
         check_conflicting_duplicates(X, y)
     upper = np.asarray(penalties, dtype=float)
-    columns = KernelColumns(X, kernel_matrix)
+    if columns is None:
+        columns = KernelColumns(X, kernel_matrix)
     full_first = False
     if alpha_start is None:
         full_first = n <= FULL_QP_LIMIT

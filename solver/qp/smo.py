@@ -10,14 +10,16 @@ point, the correction from the current point needs no other kernel block:
     [K_SS  1] [d]   [F_S        ]
     [1'    0] [b] = [-sum(beta) ]         beta_S <- beta_S + d.
 
-When the corrected alphas stay inside their box the face was right; when
-not, the step stops at the first bound reached and more pair steps follow at
-a tighter violation.  Every candidate is judged on the whole problem, on F
-computed afresh from the kernel, by the relative duality gap of
-``dual_certify``; the fast path gives up (returns None with its best alpha)
-rather than report a point that does not pass.
+The finish is a primal active-set method on these systems (``_face_steps``):
+when the corrected alphas leave the box the step stops at the first bound and
+drops what reached one; when they stay inside, bound variables on the wrong
+side of b are released, worst first.  Pair steps run in stages of tighter
+violation (VIOLATIONS), each followed by a finish.  Every candidate is judged
+on the whole problem, on F computed afresh from kernel values, by the
+relative duality gap of ``dual_certify`` and by y'a = 0; the result says
+``optimal`` only when both pass, and otherwise carries its best alpha for the
+decomposition (``dual_solver``) to continue from.
 """
-
 from __future__ import annotations
 
 import logging
@@ -38,7 +40,10 @@ log = logging.getLogger(__name__)
 CACHE_BYTES = 200 * 2**20        # kernel rows kept, as the reference library's default
 VIOLATIONS = (1e-3, 1e-4, 1e-6, 1e-9)   # pair steps stop at these, one after another
 FACE_LIMIT = 3_000               # free variables up to which the face system is solved
-STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together
+STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together, at most
+STEPS_PER_POINT = 300            # ... and at most this many per point: past it (huge C,
+                                 # a nearly hard margin) the decomposition's rounds do
+                                 # better (measured: C = 1e6 on 300 points 1.2 s -> 41 ms)
 FACE_STEPS = 30                  # active-set steps after each stage of pair steps
 WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
 FEW_STEPS = 20
@@ -76,30 +81,48 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     alpha = np.zeros(n) if alpha_start is None else np.array(alpha_start, dtype=float)
     F = _fresh_F(columns, y, alpha)
     steps, stage = 0, 0
+    limit = min(STEP_LIMIT, STEPS_PER_POINT * n)
     best = None
     if alpha_start is not None:
         # a warm start (C or gamma moved a little) is often a few face steps from the optimum
         if _finish(columns, y, upper, alpha, F, FACE_STEPS):
             F = _fresh_F(columns, y, alpha)
             b, gap = _certificate(alpha, F, y, upper)
-            if gap <= gap_target:
+            if gap <= gap_target and _balanced(alpha, y):
                 return FastSolution(alpha, b, F, gap, 0, 0, True)
     for stage, eps in enumerate(VIOLATIONS[:stages], start=1):
-        taken, violation = smo_core.smo_rbf(X, y, upper, gamma, alpha, F, eps,
-                                             STEP_LIMIT - steps, columns.store, columns.slot,
-                                             columns.owner, columns.stamp)
-        columns.clock = max(columns.clock, int(columns.stamp.max()))
-        steps += int(taken)
+        taken, violation, F = _pair_steps(X, y, upper, gamma, alpha, F, eps, limit - steps,
+                                          columns)
+        steps += taken
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
         _finish(columns, y, upper, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS)
         F = _fresh_F(columns, y, alpha)               # certify on F computed afresh
         b, gap = _certificate(alpha, F, y, upper)
         log.debug("stage %d: eps %.0e, %d pair steps, violation %.1e, gap %.1e",
                   stage, eps, taken, violation, gap)
-        best = FastSolution(alpha.copy(), b, F.copy(), gap, steps, stage, gap <= gap_target)
-        if best.optimal or steps >= STEP_LIMIT:
+        best = FastSolution(alpha.copy(), b, F.copy(), gap, steps, stage,
+                            gap <= gap_target and _balanced(alpha, y))
+        if best.optimal or steps >= limit:
             break
     return best
+
+
+def _pair_steps(X, y, upper, gamma, alpha, F, eps, budget, columns):
+    """(steps, violation, F): pair steps until the violation over all points is <= eps
+    (each time the searched ones meet it, F is computed afresh and all are checked)."""
+    taken = 0
+    while True:
+        steps, violation, left_out = smo_core.smo_rbf(
+            X, y, upper, gamma, alpha, F, eps, budget - taken,
+            columns.store, columns.slot, columns.owner, columns.stamp)
+        columns.clock = max(columns.clock, int(columns.stamp.max()))
+        taken += int(steps)
+        if not left_out:
+            return taken, violation, F
+        F = _fresh_F(columns, y, alpha)
+        violation = certify.violation(F, y, alpha, upper)
+        if violation <= eps or taken >= budget:
+            return taken, violation, F
 
 
 def rbf_columns(X, gamma) -> KernelColumns:
@@ -116,6 +139,11 @@ def _fresh_F(columns, y, alpha):
     return y - columns.product(support, alpha[support] * y[support])
 
 
+def _balanced(alpha, y) -> bool:
+    """y'a = 0 up to rounding: D(a) bounds the optimum from below only then."""
+    return abs(float(alpha @ y)) <= 1e-12 * max(1.0, float(alpha.sum()))
+
+
 def _certificate(alpha, F, y, upper):
     b = certify.intercept(F, y, upper, alpha)
     gradient = -y * F                                  # g = Qa - 1 = -y F
@@ -126,8 +154,7 @@ def _certificate(alpha, F, y, upper):
 def _finish(columns, y, upper, alpha, F, limit):
     """_face_steps, then y'a = 0 made exact again if dropping variables broke it."""
     done = _face_steps(columns, y, upper, alpha, F, limit)
-    excess = float(alpha @ y)
-    if abs(excess) <= 1e-13 * max(1.0, float(alpha.sum())):
+    if _balanced(alpha, y):
         return done
     repaired = feasible(alpha, y, -y * F)       # lowers the heavier class, least needed first
     changed = np.flatnonzero(repaired != alpha)

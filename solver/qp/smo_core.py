@@ -14,9 +14,10 @@ information, the largest gain (F_i - F_t)^2 / (k_ii + k_tt - 2 k_it) among
 "low" (Fan, Chen & Lin, "Working Set Selection Using Second Order
 Information for Training SVM", JMLR 6, 2005).  Variables at a bound that are
 far from violating are left out of the search for a while (shrinking,
-Joachims 1999); F is kept exact on every point, so they are checked again at
-no cost before the loop ends.  Kernel rows come from a least-recently-used
-cache of full rows.
+Joachims 1999); when the searched ones meet the violation, the caller
+computes F afresh on every point and checks them all again.  Kernel rows live in the arrays of a ``KernelColumns`` (least
+recently used first out); a row computed while variables are left out holds
+only the searched entries and is forgotten before the others come back.
 
 This is a first-order method: it stops at a violation ``eps`` and
 ``smo.py`` finishes exactly on the face it found.  numba compiles it once
@@ -71,8 +72,8 @@ def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m):
 
 @nb.njit(cache=True, nogil=True)
 def _drop_partial(slot_of, owner, stamp, partial):
-    """Forget rows computed on part of the points (before all are searched again, and
-    before the rows are handed back to KernelColumns, which expects whole rows)."""
+    """Forget rows computed on part of the points before the rows are handed back to
+    KernelColumns, which expects whole rows."""
     for s in range(len(owner)):
         if partial[s]:
             if owner[s] >= 0:
@@ -108,10 +109,12 @@ def _extremes(F, act, m, up, low):
 
 @nb.njit(cache=True, nogil=True)
 def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stamp):
-    """Pair steps until max(F over up) - min(F over low) <= eps or max_steps.
+    """Pair steps until max(F over up) - min(F over low) <= eps over the variables still
+    searched, or max_steps.
 
-    alpha and F are updated in place (F exact on every point on return).
-    Returns (steps, violation).
+    alpha and F are updated in place; F of variables left out by shrinking is
+    not kept up to date (the caller computes F afresh when ``left_out``).
+    Returns (steps, violation over the searched ones, left_out).
     """
     n = len(y)
     up = np.zeros(n, dtype=nb.boolean)
@@ -120,7 +123,7 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
         _sides(y, C, alpha, t, up, low)
     act = np.arange(n)                 # the variables searched and updated: act[:m]
     m = n
-    shrink_every = min(n, 1000)
+    shrink_every = min(n, 200)
     countdown = shrink_every
     clock = stamp.max() + 1
     partial = np.zeros(len(owner), dtype=nb.boolean)
@@ -129,15 +132,7 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
     while True:
         violation = f_up - f_low
         if i < 0 or violation <= eps or steps >= max_steps:
-            if m == n or steps >= max_steps:
-                break
-            _reconstruct(X, gamma, y, alpha, F, act, m)   # F afresh on the left-out ones
-            _drop_partial(slot_of, owner, stamp, partial)
-            act = np.arange(n)
-            m = n
-            countdown = shrink_every
-            f_up, i, f_low = _extremes(F, act, m, up, low)
-            continue
+            break
         si = _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
@@ -195,10 +190,8 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
         if countdown <= 0:
             countdown = shrink_every
             m = _shrink(F, act, m, up, low, f_up, f_low)
-    if m < n:
-        _reconstruct(X, gamma, y, alpha, F, act, m)
     _drop_partial(slot_of, owner, stamp, partial)
-    return steps, violation
+    return steps, violation, m < n
 
 
 @nb.njit(cache=True, nogil=True)
@@ -214,48 +207,3 @@ def _shrink(F, act, m, up, low, f_up, f_low):
         act[kept] = t
         kept += 1
     return kept
-
-
-@nb.njit(cache=True, nogil=True)
-def _reconstruct(X, gamma, y, alpha, F, act, m):
-    """F_t = y_t - sum_j beta_j k(x_t, x_j) for every t not in act[:m]."""
-    n, d = X.shape
-    inside = np.zeros(n, dtype=nb.boolean)
-    for k in range(m):
-        inside[act[k]] = True
-    support = np.flatnonzero(alpha > 0)
-    for t in range(n):
-        if inside[t]:
-            continue
-        s = 0.0
-        for c in range(len(support)):
-            j = support[c]
-            q = 0.0
-            for k in range(d):
-                diff = X[t, k] - X[j, k]
-                q += diff * diff
-            s += alpha[j] * y[j] * math.exp(-gamma * q)
-        F[t] = y[t] - s
-
-
-@nb.njit(cache=True, nogil=True)
-def rbf_product(X, gamma, columns, weights, out):
-    """out -= K[:, columns] @ weights, row by row, without storing K."""
-    n, d = X.shape
-    for t in range(n):
-        s = 0.0
-        for c in range(len(columns)):
-            j = columns[c]
-            q = 0.0
-            for k in range(d):
-                diff = X[t, k] - X[j, k]
-                q += diff * diff
-            s += weights[c] * math.exp(-gamma * q)
-        out[t] -= s
-
-
-def new_cache(n: int, budget_bytes: int):
-    """Arrays of an empty row cache for n points within budget_bytes."""
-    slots = int(max(2, min(n, budget_bytes // (8 * max(n, 1)))))
-    return (np.empty((slots, n)), np.full(n, -1, dtype=np.int64),
-            np.full(slots, -1, dtype=np.int64), np.zeros(slots, dtype=np.int64))

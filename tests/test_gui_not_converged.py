@@ -38,6 +38,16 @@ def failing_from_gamma(monkeypatch):
     return limit
 
 
+def _the_reason_fits_beside_the_read_outs(window):
+    bar = window.statusBar()
+    shown = bar.currentMessage()
+    assert shown.endswith("\u2026") and STOPPED.startswith(shown[:-1])    # cut with an ellipsis
+    assert bar.toolTip() == STOPPED                                         # all of it here
+    read_outs = sum(w.width() for w in (window.status.cursor, window.status.fit_state,
+                                        window.status.busy_indicator))
+    assert bar.fontMetrics().horizontalAdvance(shown) <= bar.width() - read_outs
+
+
 def _words_on_screen(window):
     return (window.canvas._stale.text() if window.canvas._stale.isVisible() else "",
             window.summary.text("state"), window.status.fit_state.text())
@@ -55,6 +65,7 @@ def test_a_first_kernel_fit_that_stops_short_is_shown_as_not_converged(window, q
     assert "not converged" in summary and STOPPED in summary
     assert "not converged" in status and "current" not in status
     assert "last good fit" not in canvas + summary
+    _the_reason_fits_beside_the_read_outs(window)
 
 
 def test_a_gamma_step_that_stops_short_keeps_the_last_good_fit_and_says_so(window, qtbot,
@@ -75,8 +86,4 @@ def test_a_gamma_step_that_stops_short_keeps_the_last_good_fit_and_says_so(windo
     canvas, summary, status = _words_on_screen(window)
     assert canvas.startswith("showing the last good fit")
     assert "stale" in summary and "stale" in status and "last solve failed" in status
-    shown = window.statusBar().currentMessage()
-    assert shown.endswith("\u2026") and STOPPED.startswith(shown[:-1])    # cut with an ellipsis
-    assert window.statusBar().toolTip() == STOPPED                          # all of it here
-    bar = window.statusBar()
-    assert bar.fontMetrics().horizontalAdvance(shown) <= bar.width() - window.status.fit_state.width()
+    _the_reason_fits_beside_the_read_outs(window)

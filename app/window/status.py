@@ -54,10 +54,10 @@ class StatusReadouts:
         self.refresh()
 
     def _document_changed(self, changes):
-        if ERROR in changes:
-            self._failed(self.document.last_error)
         if changes & {POINTS, CONFIG, RESULT}:
             self.refresh()
+        if ERROR in changes:      # after refresh: the read-outs' new width leaves the room
+            self._failed(self.document.last_error)
         if PINNED in changes:
             self._pinned()
 

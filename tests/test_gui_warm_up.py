@@ -112,3 +112,24 @@ def test_the_real_warm_up_ends_and_the_first_rbf_fit_follows(window, qtbot):
     _choose_rbf(window, qtbot)
     settle(window, qtbot)
     assert window.document.current_result().solver_status == "optimal"
+
+
+def test_a_window_destroyed_before_the_warm_up_ends_leaves_nothing_to_crash(qtbot,
+                                                                           temporary_settings):
+    from app.window.main_window import MainWindow
+    win = MainWindow(quiet=True)
+    win.show()
+    work = _HeldWork()
+    status = install_warm_up(win, work)
+    qtbot.waitUntil(lambda: status.warm_up.running, timeout=2000)
+    warm_up = status.warm_up
+    win.recovery.timer.stop()
+    win.document.shutdown()
+    win.deleteLater()
+    qtbot.wait(50)                              # the window and its warm-up object are gone
+    work.release.set()
+    assert warm_up._thread is not None
+    warm_up_thread = warm_up._thread
+    warm_up_thread.join(10)
+    assert not warm_up_thread.is_alive()
+    qtbot.wait(3 * 50)                          # a poll that would fire now has nothing to touch

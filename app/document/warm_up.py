@@ -10,7 +10,10 @@ on its own, or say why it cannot.
 
 A plain (non-daemon) thread rather than a QThread: a QThread still running
 when its owner is destroyed aborts the program, and a window may close
-before the warm-up ends; the interpreter waits for this thread at exit.
+before the warm-up ends; the interpreter waits for this thread at exit.  The
+thread never touches Qt: it leaves its outcome behind, and a timer on the GUI
+thread picks it up and emits the signals, so no signal is ever sent from the
+thread to an object the window has already destroyed.
 """
 
 from __future__ import annotations
@@ -18,11 +21,12 @@ from __future__ import annotations
 import logging
 import threading
 
-from PySide6.QtCore import QObject, Signal
+from PySide6.QtCore import QObject, QTimer, Signal
 
 from solver.warm_up import prepare_kernel_solver
 
 log = logging.getLogger(__name__)
+POLL_MS = 50              # how often the GUI thread looks whether the warm-up has ended
 
 
 class SolverWarmUp(QObject):
@@ -36,44 +40,59 @@ class SolverWarmUp(QObject):
         super().__init__(parent)
         self._work = work or prepare_kernel_solver
         self._thread: threading.Thread | None = None
-        self._done = threading.Event()
+        self._outcome = _Outcome()   # all the thread touches: no Qt object
+        self._poll = QTimer(self, interval=POLL_MS)
+        self._poll.timeout.connect(self._collect)
 
     @property
     def running(self) -> bool:
-        return self._thread is not None and not self._done.is_set()
+        return self._thread is not None and not self._outcome.done.is_set()
 
     @property
     def done(self) -> bool:
-        return self._done.is_set()
+        return self._outcome.done.is_set()
 
     def start(self):
         if self._thread is not None:
             return                # once per window
-        self._thread = threading.Thread(target=self._run, name="slackline-warm-up")
+        self._thread = threading.Thread(target=_run, args=(self._work, self._outcome),
+                                        name="slackline-warm-up")
         self.started.emit()
         self._thread.start()
+        self._poll.start()
 
     def wait(self, timeout: float | None = None) -> bool:
         """Block until the work ended (tests, benchmarks); True when it did."""
-        return self._done.wait(timeout)
+        return self._outcome.done.wait(timeout)
 
-    def _run(self):
-        try:
-            seconds = float(self._work())
-        except Exception as exc:  # noqa: BLE001 - a failed warm-up must never reach the user
-            message = f"{type(exc).__name__}: {exc}"
-            log.warning("getting the kernel solver ready failed (%s); the first kernel fit "
-                        "will do it instead", message)
-            self._done.set()
-            self._emit(self.failed, message)
+    def _collect(self):             # on the GUI thread
+        if not self._outcome.done.is_set():
             return
-        log.info("kernel solver ready after %.2f s", seconds)
-        self._done.set()
-        self._emit(self.finished, seconds)
+        self._poll.stop()
+        seconds, message = self._outcome.seconds, self._outcome.message
+        if message is None:
+            self.finished.emit(seconds)
+        else:
+            self.failed.emit(message)
 
-    @staticmethod
-    def _emit(signal, value):
-        try:
-            signal.emit(value)    # queued to the GUI thread
-        except RuntimeError:      # the window is already gone
-            pass
+
+class _Outcome:
+    """What the thread leaves behind: seconds or a message, then ``done`` set."""
+
+    def __init__(self):
+        self.done = threading.Event()
+        self.seconds: float | None = None
+        self.message: str | None = None
+
+
+def _run(work, outcome: _Outcome):
+    """The thread's body: no Qt here."""
+    try:
+        outcome.seconds = float(work())
+    except Exception as exc:  # noqa: BLE001 - a failed warm-up must never reach the user
+        outcome.message = f"{type(exc).__name__}: {exc}"
+        log.warning("getting the kernel solver ready failed (%s); the first kernel fit "
+                    "will do it instead", outcome.message)
+    else:
+        log.info("kernel solver ready after %.2f s", outcome.seconds)
+    outcome.done.set()

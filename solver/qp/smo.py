@@ -49,6 +49,7 @@ WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
 FEW_STEPS = 20
 NEAR_BOUND = 1e-2                # see _step_in_box
 SHORT, SHORT_STEPS = 1e-2, 3     # face steps this short, this many in a row: back to pairs
+                                 # (one, above WIDE_FACE free: each costs |S|^3 / 3)
 RELEASE = 16                     # bound variables released per face step, worst first
                                  # (a quarter of them at once: most bounced straight back)
 
@@ -193,7 +194,7 @@ def _face_steps(columns, y, upper, alpha, F, limit):
             if t < 1.0:
                 S[free[hit]] = False
                 short = short + 1 if t < SHORT else 0
-                if short >= SHORT_STEPS:
+                if short >= (SHORT_STEPS if len(free) <= WIDE_FACE else 1):
                     return False     # the face is still far: more pair steps first
                 continue
         else:

@@ -45,6 +45,10 @@ class KernelColumns:
         """K[idx, :] (= K[:, idx]' by symmetry) as a |idx| x n array (a copy)."""
         return self.store[self._ensure(idx)]
 
+    def fill(self, idx: np.ndarray) -> None:
+        """Compute and keep columns idx (at most ``capacity`` of them)."""
+        self._ensure(idx)
+
     def block(self, idx: np.ndarray) -> np.ndarray:
         """K[idx, idx]."""
         return self.store[np.ix_(self._ensure(idx), idx)]      # gathers |idx|^2 entries only

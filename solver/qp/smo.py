@@ -39,6 +39,7 @@ log = logging.getLogger(__name__)
 
 CACHE_BYTES = 200 * 2**20        # kernel rows kept, as the reference library's default
 VIOLATIONS = (1e-3, 1e-4, 1e-6, 1e-9)   # pair steps stop at these, one after another
+PREFILL = 2_000                  # points up to which all of K is computed up front
 FACE_LIMIT = 3_000               # free variables up to which the face system is solved
 STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together, at most
 STEPS_PER_POINT = 300            # ... and at most this many per point: past it (huge C,
@@ -49,6 +50,7 @@ WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
 FEW_STEPS = 20
 NEAR_BOUND = 1e-2                # see _step_in_box
 SHORT, SHORT_STEPS = 1e-2, 3     # face steps this short, this many in a row: back to pairs
+                                 # (one, above WIDE_FACE free: each costs |S|^3 / 3)
 RELEASE = 16                     # bound variables released per face step, worst first
                                  # (a quarter of them at once: most bounced straight back)
 
@@ -78,6 +80,8 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     n = len(y)
     if columns is None:
         columns = rbf_columns(X, gamma)
+    if n <= PREFILL and columns.capacity >= n:
+        columns.fill(np.arange(n))     # vectorised exp beats rows one by one in the loop
     alpha = np.zeros(n) if alpha_start is None else np.array(alpha_start, dtype=float)
     F = _fresh_F(columns, y, alpha)
     steps, stage = 0, 0
@@ -193,7 +197,7 @@ def _face_steps(columns, y, upper, alpha, F, limit):
             if t < 1.0:
                 S[free[hit]] = False
                 short = short + 1 if t < SHORT else 0
-                if short >= SHORT_STEPS:
+                if short >= (SHORT_STEPS if len(free) <= WIDE_FACE else 1):
                     return False     # the face is still far: more pair steps first
                 continue
         else:

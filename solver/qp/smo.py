@@ -81,7 +81,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     n = len(y)
     if columns is None:
         columns = rbf_columns(X, gamma)
-    if n <= PREFILL and columns.capacity >= n:
+    if alpha_start is None and n <= PREFILL and columns.capacity >= n:
         columns.fill(np.arange(n))     # vectorised exp beats rows one by one in the loop
     alpha = np.zeros(n) if alpha_start is None else np.array(alpha_start, dtype=float)
     F = _fresh_F(columns, y, alpha)
@@ -90,7 +90,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     best = None
     if alpha_start is not None:
         # a warm start (C or gamma moved a little) is often a few face steps from the optimum
-        if _finish(columns, y, upper, alpha, F, FACE_STEPS):
+        if _finish(columns, y, upper, alpha, F, FACE_STEPS, patient=True):
             F = _fresh_F(columns, y, alpha)
             b, gap = _certificate(alpha, F, y, upper)
             if gap <= gap_target and _balanced(alpha, y):
@@ -156,9 +156,9 @@ def _certificate(alpha, F, y, upper):
     return b, certify.relative_gap(primal, dual)
 
 
-def _finish(columns, y, upper, alpha, F, limit):
+def _finish(columns, y, upper, alpha, F, limit, patient=False):
     """_face_steps, then y'a = 0 made exact again if dropping variables broke it."""
-    done = _face_steps(columns, y, upper, alpha, F, limit)
+    done = _face_steps(columns, y, upper, alpha, F, limit, patient)
     if _balanced(alpha, y):
         return done
     repaired = feasible(alpha, y, -y * F)       # lowers the heavier class, least needed first
@@ -168,7 +168,7 @@ def _finish(columns, y, upper, alpha, F, limit):
     return False
 
 
-def _face_steps(columns, y, upper, alpha, F, limit):
+def _face_steps(columns, y, upper, alpha, F, limit, patient=False):
     """Active-set steps on the face the pair steps found (alpha and F in place).
 
     Each step solves the face system on the working free set S; when the
@@ -198,7 +198,8 @@ def _face_steps(columns, y, upper, alpha, F, limit):
             if t < 1.0:
                 S[free[hit]] = False
                 short = short + 1 if t < SHORT else 0
-                if short >= (SHORT_STEPS if len(free) <= WIDE_FACE else 1):
+                # (patient: from a warm start, where short steps onto nearby bounds are usual)
+                if not patient and short >= (SHORT_STEPS if len(free) <= WIDE_FACE else 1):
                     return False     # the face is still far: more pair steps first
                 continue
         else:

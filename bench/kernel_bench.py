@@ -6,8 +6,10 @@ C in {1, 100}; n in {1,000, 5,000, 10,000}.  Printed per cell: our whole-call
 wall time, SVC's (default tol=1e-3) on the same data in the same run, the
 ratio SVC / ours (above 1: we are faster), both dual objectives
 D = 1'a - 1/2 a'Qa (SVC's from its dual coefficients; ours is the larger or
-equal one when exact), our relative duality gap and rounds.  Then warm steps
-at n = 1,000 (C +10%, gamma +10%) and the peak memory of the largest cell.
+equal one when exact), our relative duality gap and rounds (on the RBF fast
+path: stages of pair steps, 0 when warm face steps alone finished).  Then
+warm steps at n = 1,000 (C +10%, gamma +10%) and the peak memory of the
+largest cell.
 
 Environment (to shrink the grid for a quick look):
   KERNEL_BENCH_N        sizes, e.g. "1000" (default "1000,5000,10000")

@@ -174,8 +174,8 @@ def _result(X, y, penalties, config, solved: _Solved, seconds: float) -> FitResu
     if not converged:
         raise ConvergenceError(
             f"the solver stopped after {solved.iterations} iterations without reaching its "
-            f"tolerance (relative duality gap {relative_gap:.1e}); the figures shown are "
-            "from its last iterate. Try scaling the features or a smaller C.", best=result)
+            f"tolerance (relative duality gap {relative_gap:.1e}), so its last iterate is not "
+            "an optimal fit. Try scaling the features or a smaller C.", best=result)
     return result
 
 

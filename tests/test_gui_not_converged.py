@@ -17,7 +17,7 @@ from solver import ConvergenceError, FitConfig
 from test_gui_fixtures import gauge_points, load_points, settle, temporary_settings, window  # noqa: F401
 
 STOPPED = ("the solver stopped after 1000 rounds without reaching its tolerance "
-           "(relative duality gap 3.2e-04); the figures shown are from its last iterate")
+           "(relative duality gap 3.2e-04), so its last iterate is not an optimal fit")
 
 
 @pytest.fixture

@@ -33,6 +33,7 @@ from solver.kernels import rbf_matrix
 from solver.qp import dual_certify as certify
 from solver.qp import smo_core
 from solver.qp.dual_start import feasible
+from solver.qp.face_factor import FaceFactor
 from solver.qp.kernel_cache import KernelColumns
 
 log = logging.getLogger(__name__)
@@ -181,12 +182,15 @@ def _face_steps(columns, y, upper, alpha, F, limit, patient=False):
     S = (alpha > 0) & (alpha < upper)
     scale = 1e-12 * max(1.0, float(np.abs(F).max()))
     short = 0                 # steps in a row that went less than SHORT of the way
+    factor = FaceFactor(columns)      # large free sets: one factor, updated step to step
     for _ in range(limit):
         free = np.flatnonzero(S)
         if len(free) > min(FACE_LIMIT, columns.capacity):
             return False
         if len(free):
-            solved = _face_system(columns, alpha @ y, F, free)
+            solved = factor.solve(free, F, float(alpha @ y)) if len(free) > WIDE_FACE else None
+            if solved is None:
+                solved = _face_system(columns, alpha @ y, F, free)
             if solved is None:
                 return False
             d, b = solved

@@ -122,9 +122,7 @@ def _solve_dual(X, Xs, y, penalties, config, shift, scale, warm_start) -> _Solve
     guess, alpha_start = _warm_start_guess(warm_start, X, y, config, penalties)
     kernel = config.kernel_spec
     kernel_matrix = lambda A, B: kernel.gram(A, B, config)  # noqa: E731
-    # a float always: numba compiles one version of the pair steps per argument type,
-    # and a gamma of 2 (int) would compile a second one for seconds
-    compiled_gamma = float(config.gamma) if kernel.compiled == "rbf" else None
+    compiled_gamma = config.gamma if kernel.compiled == "rbf" else None
     sol = solve_dual(Xs, y, penalties, kernel_matrix, config.options, guess_margin=guess,
                      alpha_start=alpha_start, rbf_gamma=compiled_gamma)
     support = np.flatnonzero(sol.alpha > 0)

@@ -78,7 +78,9 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     X = np.ascontiguousarray(X, dtype=float)
     y = np.ascontiguousarray(y, dtype=float)
     upper = np.ascontiguousarray(upper, dtype=float)
-    gamma = float(gamma)            # one compiled version: an int gamma would build another
+    # a float always: numba compiles one version per argument type, and an int gamma
+    # (a script's 2) would build a second one for seconds
+    gamma = float(gamma)
     n = len(y)
     if columns is None:
         columns = rbf_columns(X, gamma)

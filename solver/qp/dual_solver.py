@@ -107,8 +107,9 @@ def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start, columns=None):
         return None, found.alpha
     decision = y - found.F + found.b             # f_i = (K beta)_i + b = y_i - F_i + b
     quadratic = float(found.alpha @ (y * (y - found.F)))   # a'Qa = beta'K beta
-    # iterations: pair steps; rounds: stages of them; working set: the pair
-    return DualSolution(found.alpha, found.b, decision, found.steps, found.stages, 2,
+    # iterations: pair and face steps; rounds: stages of pair steps; working set: the pair
+    return DualSolution(found.alpha, found.b, decision, found.steps + found.face_steps,
+                        found.stages, 2,
                         "optimal", found.gap, quadratic=quadratic), None
 
 

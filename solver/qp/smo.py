@@ -62,9 +62,10 @@ class FastSolution:
     b: float
     F: np.ndarray          # y - K beta on every point, computed afresh
     gap: float
-    steps: int
+    steps: int             # pair steps
     stages: int
     optimal: bool
+    face_steps: int = 0
 
 
 def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
@@ -89,27 +90,29 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     alpha = np.zeros(n) if alpha_start is None else np.array(alpha_start, dtype=float)
     F = _fresh_F(columns, y, alpha)
     steps, stage = 0, 0
+    tally = [0]                     # face steps, counted by _face_steps
     limit = min(STEP_LIMIT, STEPS_PER_POINT * n)
     best = None
     if alpha_start is not None:
         # a warm start (C or gamma moved a little) is often a few face steps from the optimum
-        if _finish(columns, y, upper, alpha, F, FACE_STEPS, patient=True):
+        if _finish(columns, y, upper, alpha, F, FACE_STEPS, tally, patient=True):
             F = _fresh_F(columns, y, alpha)
             b, gap = _certificate(alpha, F, y, upper)
             if gap <= gap_target and _balanced(alpha, y):
-                return FastSolution(alpha, b, F, gap, 0, 0, True)
+                return FastSolution(alpha, b, F, gap, 0, 0, True, tally[0])
     for stage, eps in enumerate(VIOLATIONS[:stages], start=1):
         taken, violation, F = _pair_steps(X, y, upper, gamma, alpha, F, eps, limit - steps,
                                           columns)
         steps += taken
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
-        _finish(columns, y, upper, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS)
+        _finish(columns, y, upper, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS,
+                tally)
         F = _fresh_F(columns, y, alpha)               # certify on F computed afresh
         b, gap = _certificate(alpha, F, y, upper)
         log.debug("stage %d: eps %.0e, %d pair steps, violation %.1e, gap %.1e",
                   stage, eps, taken, violation, gap)
         best = FastSolution(alpha.copy(), b, F.copy(), gap, steps, stage,
-                            gap <= gap_target and _balanced(alpha, y))
+                            gap <= gap_target and _balanced(alpha, y), tally[0])
         if best.optimal or steps >= limit:
             break
     return best
@@ -159,9 +162,9 @@ def _certificate(alpha, F, y, upper):
     return b, certify.relative_gap(primal, dual)
 
 
-def _finish(columns, y, upper, alpha, F, limit, patient=False):
+def _finish(columns, y, upper, alpha, F, limit, tally, patient=False):
     """_face_steps, then y'a = 0 made exact again if dropping variables broke it."""
-    done = _face_steps(columns, y, upper, alpha, F, limit, patient)
+    done = _face_steps(columns, y, upper, alpha, F, limit, tally, patient)
     if _balanced(alpha, y):
         return done
     repaired = feasible(alpha, y, -y * F)       # lowers the heavier class, least needed first
@@ -171,7 +174,7 @@ def _finish(columns, y, upper, alpha, F, limit, patient=False):
     return False
 
 
-def _face_steps(columns, y, upper, alpha, F, limit, patient=False):
+def _face_steps(columns, y, upper, alpha, F, limit, tally, patient=False):
     """Active-set steps on the face the pair steps found (alpha and F in place).
 
     Each step solves the face system on the working free set S; when the
@@ -190,6 +193,7 @@ def _face_steps(columns, y, upper, alpha, F, limit, patient=False):
         if len(free) > min(FACE_LIMIT, columns.capacity):
             return False
         if len(free):
+            tally[0] += 1
             solved = factor.solve(free, F, float(alpha @ y)) if len(free) > WIDE_FACE else None
             if solved is None:
                 solved = _face_system(columns, alpha @ y, F, free)

@@ -1,0 +1,69 @@
+"""The kernel-row buffer pool: memory goes from one KernelColumns to the next, never to two
+at once, and a cache on a reused buffer computes what a fresh one does."""
+
+import gc
+
+import numpy as np
+
+from solver.kernels import rbf_matrix
+from solver.qp import kernel_cache
+from solver.qp.kernel_cache import BUFFERS, KernelColumns
+
+
+def _gaussian(X, gamma):
+    return lambda A, B: rbf_matrix(A, B, gamma)
+
+
+def _points(n, seed=0):
+    return np.random.default_rng(seed).normal(size=(n, 2))
+
+
+def _memory(columns):
+    return columns.store.base if columns.store.base is not None else columns.store
+
+
+def _handed_back(X, gamma=1.0):
+    """The memory of a cache on X that is gone (the pool emptied first)."""
+    BUFFERS.clear()
+    gone = KernelColumns(X, _gaussian(X, gamma))
+    gone.fill(np.arange(len(X)))
+    memory = _memory(gone)
+    del gone
+    gc.collect()
+    return memory
+
+
+def test_a_cache_that_is_gone_hands_its_buffer_to_the_next():
+    X = _points(600)
+    memory = _handed_back(X)
+    second = KernelColumns(X, _gaussian(X, 1.0))
+    assert np.shares_memory(_memory(second), memory)
+
+
+def test_two_caches_alive_at_once_never_share_memory():
+    BUFFERS.clear()
+    X = _points(600)
+    first = KernelColumns(X, _gaussian(X, 1.0))
+    second = KernelColumns(X, _gaussian(X, 2.0))
+    assert not np.shares_memory(first.store, second.store)
+
+
+def test_a_reused_buffer_holds_nothing_of_the_last_fit():
+    # K computed from the formula k(x, z) = exp(-gamma |x - z|^2), written out here
+    memory = _handed_back(_points(600), gamma=5.0)
+    Z = _points(600, seed=1)
+    columns = KernelColumns(Z, _gaussian(Z, 0.5))
+    assert np.shares_memory(_memory(columns), memory)
+    idx = np.arange(0, 600, 7)
+    squared = ((Z[idx][:, None, :] - Z[idx][None, :, :]) ** 2).sum(axis=2)
+    np.testing.assert_allclose(columns.block(idx), np.exp(-0.5 * squared), rtol=1e-14)
+
+
+def test_small_caches_leave_the_kept_buffer_alone():
+    X = _points(600)
+    memory = _handed_back(X)
+    small = KernelColumns(X[:50], _gaussian(X[:50], 1.0))
+    assert small.store.size < kernel_cache.SMALL
+    assert not np.shares_memory(small.store, memory)
+    again = KernelColumns(X, _gaussian(X, 1.0))
+    assert np.shares_memory(_memory(again), memory)

@@ -16,6 +16,7 @@ ON_MARGIN = "on_margin"
 INSIDE = "inside"
 MISCLASSIFIED = "misclassified"
 STATUSES = (OUTSIDE, ON_MARGIN, INSIDE, MISCLASSIFIED)
+ROUNDING_SLACK = 1e-12     # slack of a point on the margin below which it is rounding
 STATUS_TEXT = {
     OUTSIDE: "outside the margin",
     ON_MARGIN: "on the margin",
@@ -92,8 +93,12 @@ class FitResult:
 
     @cached_property
     def slack(self) -> np.ndarray:
-        """xi_i = max(0, 1 - y_i f(x_i))."""
-        return _frozen(np.maximum(0.0, 1.0 - self.functional_margin))
+        """xi_i = max(0, 1 - y_i f(x_i)); exactly 0 on a point on the margin whose
+        y_i f(x_i) misses 1 by rounding alone (at most ROUNDING_SLACK: an exact solve
+        leaves 1 - 2e-16 there, which read as a slack of 2.2e-16)."""
+        slack = np.maximum(0.0, 1.0 - self.functional_margin)
+        slack[(self.status == ON_MARGIN) & (slack <= ROUNDING_SLACK)] = 0.0
+        return _frozen(slack)
 
     @cached_property
     def distance(self) -> np.ndarray:

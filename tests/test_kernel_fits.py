@@ -175,6 +175,7 @@ def test_a_fit_stopped_by_its_round_limit_raises_with_its_best_iterate(monkeypat
     monkeypatch.setattr(smo, "STEP_LIMIT", 20)
     monkeypatch.setattr(smo, "FACE_STEPS", 0)
     monkeypatch.setattr(smo, "FEW_STEPS", 0)
+    monkeypatch.setattr(smo, "PATIENT_STEPS", 0)
     monkeypatch.setattr(dual_solver, "MAX_ROUNDS", 1)
     monkeypatch.setattr(dual_solver, "START", "subsample")
     X, y = _moons(600)
@@ -184,6 +185,9 @@ def test_a_fit_stopped_by_its_round_limit_raises_with_its_best_iterate(monkeypat
     assert best is not None and not best.converged
     assert best.relative_gap > 1e-9
     assert (best.alpha >= 0).all() and (best.alpha <= 10.0).all()   # still feasible
+    # the count in the message includes the pair steps before the hand-over
+    assert best.iterations >= 20
+    assert f"after {best.iterations} iterations" in str(caught.value)
 
 
 def test_kernel_columns_match_the_formula_also_after_eviction():

@@ -23,6 +23,12 @@ def _standardised(X):
     return (X - X.mean(axis=0)) / X.std(axis=0)
 
 
+def _decomposition_only(X, y, upper, gamma, guess_margin, alpha_start, columns=None):
+    """Stands in for dual_solver._pair_steps: no pair steps, the decomposition from the start
+    (its own cold start when there is no alpha_start)."""
+    return None, smo.FastSolution(alpha_start, 0.0, None, np.inf, 0, 0, False)
+
+
 def _moons(n, seed=0):
     X, labels = make_moons(n_samples=n, noise=0.25, random_state=seed)
     return _standardised(X), np.where(labels == 1, 1.0, -1.0)
@@ -73,7 +79,7 @@ def test_fast_path_and_decomposition_reach_the_same_optimum(gamma, C, monkeypatc
     fast = _fit(X, y, C, gamma)
     with monkeypatch.context() as patch:
         patch.setattr(dual_solver, "_pair_steps",
-                      lambda *args, **kw: (None, args[5]))
+                      _decomposition_only)
         slow = _fit(X, y, C, gamma)
     assert slow.rounds >= 1 and fast.converged and slow.converged
     assert fast.dual_objective == pytest.approx(slow.dual_objective, rel=1e-9)
@@ -111,7 +117,7 @@ def test_shrinking_on_more_than_a_thousand_points_keeps_the_optimum(monkeypatch)
     fast = _fit(X, y, 10.0, 2.0)
     assert calls and calls[-1].optimal                        # the fast path certified it
     monkeypatch.setattr(dual_solver, "_pair_steps",
-                        lambda *args, **kw: (None, args[5]))
+                        _decomposition_only)
     slow = _fit(X, y, 10.0, 2.0)
     assert fast.dual_objective == pytest.approx(slow.dual_objective, rel=1e-9)
     np.testing.assert_allclose(fast.decision, slow.decision, atol=1e-6)
@@ -165,3 +171,17 @@ def test_a_huge_C_hands_over_to_the_decomposition_and_stays_exact(monkeypatch):
     margin = y * result.decision                              # KKT written out
     assert (margin[result.alpha == 0] >= 1 - 1e-6).all()
     assert abs(float(result.alpha @ y)) <= 1e-6
+
+
+def test_points_on_the_margin_report_no_slack_from_rounding():
+    # an exact face solve leaves y f = 1 - 2e-16 on free support vectors; the KKT
+    # conditions (0 < alpha < C  =>  y f = 1, xi = 0) say their slack is 0
+    X, y = _moons(300)
+    result = fit(X, y, FitConfig(C=1.0, kernel="rbf", gamma=2.0))
+    on = result.status == "on_margin"
+    assert on.any()
+    assert (result.slack[on] == 0.0).all()
+    np.testing.assert_allclose(result.functional_margin[on], 1.0, atol=1e-9)
+    off = ~on
+    np.testing.assert_array_equal(result.slack[off],
+                                  np.maximum(0.0, 1.0 - result.functional_margin[off]))

@@ -154,3 +154,21 @@ def test_warm_start_after_a_change_of_C_reaches_the_reference_optimum():
     _, _, reference_dual = _reference(X, y, 1.5, KERNELS["rbf"])
     warm = fit(X, y, FitConfig(C=1.5, kernel="rbf", gamma=0.7), warm_start=first)
     assert warm.dual_objective == pytest.approx(reference_dual, rel=1e-6)
+
+
+@pytest.mark.parametrize("seed, C", [(180, 0.1), (2140, 3.0)])
+def test_small_linear_fits_that_stalled_on_rounding_converge(seed, C):
+    # two overlapping unit Gaussians, 18 points each: without iterative refinement
+    # cvxopt's dual residual stalled near feastol and the fit raised ConvergenceError
+    rng = np.random.default_rng(seed)
+    X = np.vstack([rng.normal(0, 1, (18, 2)), rng.normal(1.0, 1, (18, 2))])
+    y = np.r_[-np.ones(18), np.ones(18)]
+    result = fit(X, y, FitConfig(C=C, kernel="linear", scaling="zscore"))
+    assert result.converged and result.relative_gap <= 1e-8
+    Xs = (X - X.mean(axis=0)) / X.std(axis=0)
+    reference = SVC(kernel="linear", C=C, tol=1e-10).fit(Xs, y)        # tol=1e-10
+    margin = y * reference.decision_function(Xs)
+    reference_primal = 0.5 * float(np.sum(reference.coef_ ** 2)) + \
+        C * float(np.maximum(0.0, 1.0 - margin).sum())
+    assert result.primal_objective <= reference_primal * (1 + 1e-9)
+    assert result.primal_objective >= reference_primal * (1 - 1e-6)

@@ -81,18 +81,20 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
         if rbf_gamma is not None and np.isfinite(penalties).all():
             # one row cache for the pair steps and, if they do not certify, the rounds
             columns = smo.rbf_columns(X, rbf_gamma)
-            fast, alpha_start = _pair_steps(X, y, penalties, rbf_gamma, guess_margin,
-                                            alpha_start, columns=columns)
+            fast, found = _pair_steps(X, y, penalties, rbf_gamma, guess_margin,
+                                      alpha_start, columns=columns)
             if fast is not None:
                 return fast
-            return _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin,
-                               alpha_start, columns)
+            rest = _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin,
+                               found.alpha, columns)
+            # the count a ConvergenceError reports includes the steps before the hand-over
+            return replace(rest, iterations=rest.iterations + found.steps + found.face_steps)
         return _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start)
 
 
 def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start, columns=None):
-    """(solution, None) when the pair steps certify the whole problem, else (None, their
-    best alpha) for the decomposition to continue from."""
+    """(solution, None) when the pair steps certify the whole problem, else (None, what
+    they found: its alpha is the best, for the decomposition to continue from)."""
     y = np.asarray(y, dtype=float)
     start = None
     if alpha_start is not None:
@@ -104,7 +106,7 @@ def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start, columns=None):
     found = smo.solve_rbf(X, y, upper, gamma, GAP_TARGET, start, columns, stages=stages)
     if not found.optimal:
         log.debug("pair steps stopped at gap %.1e: the decomposition goes on", found.gap)
-        return None, found.alpha
+        return None, found
     decision = y - found.F + found.b             # f_i = (K beta)_i + b = y_i - F_i + b
     quadratic = float(found.alpha @ (y * (y - found.F)))   # a'Qa = beta'K beta
     # iterations: pair and face steps; rounds: stages of pair steps; working set: the pair
@@ -200,6 +202,7 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
             log.debug("   |W| = %d, %d its, %s, exact face step %s", len(work), its, qp_status,
                       exact)
         else:
+            iterations += 1                   # a round the active-set steps solved counts one
             log.debug("   |W| = %d, solved by an active-set step", len(work))
         a_new = _restore_equality(a_new, yw, upper[work], rest)
         step = a_new - a_old

@@ -188,6 +188,11 @@ def solve_primal_qp(phi: np.ndarray, y: np.ndarray, penalties: np.ndarray | None
         "abstol": options.abstol,
         "reltol": options.reltol,
         "feastol": options.feastol,
+        # one step of iterative refinement per KKT solve: without it the reduced
+        # system's rounding stalled the dual residual near feastol on a tiny, well
+        # posed problem (36 points), 50 iterations ending on a singular KKT matrix
+        # with inexact multipliers; with it, 12 iterations and "optimal"
+        "refinement": 1,
     }
     try:
         sol = cvxopt.solvers.coneqp(problem.P, problem.q, problem.G, problem.h,

@@ -52,6 +52,14 @@ FEW_STEPS = 20
 NEAR_BOUND = 1e-2                # see _step_in_box
 SHORT, SHORT_STEPS = 1e-2, 3     # face steps this short, this many in a row: back to pairs
                                  # (one, above WIDE_FACE free: each costs |S|^3 / 3)
+PATIENT_FROM = 2                 # from this stage on (and after a warm start) the finish
+PATIENT_STEPS = 30               # is patient, short steps do not end it, for this many
+PATIENT_FREE = 1_000             # steps, when at most this many are free (n = 1,000 moons,
+                                 # gamma 10, C 1: from 1e-4 six patient steps end the fit,
+                                 # where the impatient finish stopped and a third stage ran)
+WARM_STEPS = 30                  # face steps straight from a warm start, at most ...
+FAR = 64                         # ... ended early when a release finds more than this many
+                                 # on the wrong side (gamma moved: pair steps do better)
 RELEASE = 16                     # bound variables released per face step, worst first
                                  # (a quarter of them at once: most bounced straight back)
 
@@ -95,7 +103,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     best = None
     if alpha_start is not None:
         # a warm start (C or gamma moved a little) is often a few face steps from the optimum
-        if _finish(columns, y, upper, alpha, F, FACE_STEPS, tally, patient=True):
+        if _finish(columns, y, upper, alpha, F, WARM_STEPS, tally, patient=True, far=FAR):
             F = _fresh_F(columns, y, alpha)
             b, gap = _certificate(alpha, F, y, upper)
             if gap <= gap_target and _balanced(alpha, y):
@@ -105,8 +113,10 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
                                           columns)
         steps += taken
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
-        _finish(columns, y, upper, alpha, F, FACE_STEPS if free <= WIDE_FACE else FEW_STEPS,
-                tally)
+        patient = (stage >= PATIENT_FROM or alpha_start is not None) and free <= PATIENT_FREE
+        _finish(columns, y, upper, alpha, F,
+                PATIENT_STEPS if patient else FACE_STEPS if free <= WIDE_FACE else FEW_STEPS,
+                tally, patient)
         F = _fresh_F(columns, y, alpha)               # certify on F computed afresh
         b, gap = _certificate(alpha, F, y, upper)
         log.debug("stage %d: eps %.0e, %d pair steps, violation %.1e, gap %.1e",
@@ -162,9 +172,9 @@ def _certificate(alpha, F, y, upper):
     return b, certify.relative_gap(primal, dual)
 
 
-def _finish(columns, y, upper, alpha, F, limit, tally, patient=False):
+def _finish(columns, y, upper, alpha, F, limit, tally, patient=False, far=None):
     """_face_steps, then y'a = 0 made exact again if dropping variables broke it."""
-    done = _face_steps(columns, y, upper, alpha, F, limit, tally, patient)
+    done = _face_steps(columns, y, upper, alpha, F, limit, tally, patient, far)
     if _balanced(alpha, y):
         return done
     repaired = feasible(alpha, y, -y * F)       # lowers the heavier class, least needed first
@@ -174,7 +184,7 @@ def _finish(columns, y, upper, alpha, F, limit, tally, patient=False):
     return False
 
 
-def _face_steps(columns, y, upper, alpha, F, limit, tally, patient=False):
+def _face_steps(columns, y, upper, alpha, F, limit, tally, patient=False, far=None):
     """Active-set steps on the face the pair steps found (alpha and F in place).
 
     Each step solves the face system on the working free set S; when the
@@ -219,8 +229,11 @@ def _face_steps(columns, y, upper, alpha, F, limit, tally, patient=False):
         wrong = np.where(can_up & ~can_down, F - b, np.where(can_down & ~can_up, b - F, 0.0))
         wrong[S | (wrong <= scale)] = 0.0
         count = int(np.count_nonzero(wrong))
+        log.debug("face step: %d free, %d on the wrong side", len(free), count)
         if not count:
             return True
+        if far is not None and count > far:
+            return False       # this many on the wrong side: the face is far, pairs first
         release = np.argsort(-wrong, kind="stable")[:RELEASE]
         S[release[wrong[release] > 0]] = True
     return False

@@ -98,6 +98,25 @@ def test_the_decomposition_finishes_what_the_pair_steps_leave(monkeypatch):
     np.testing.assert_allclose(result.decision, reference.decision_function(X), atol=1e-5)
 
 
+def test_a_decomposition_cut_short_ends_on_an_exact_solve_of_its_free_set(monkeypatch):
+    """Ten rounds on working sets of 100 are far from enough here (their gap is still
+    0.5 at the end, measured); the exact solve on the whole free set that the
+    decomposition tries before giving up certifies the optimum."""
+    monkeypatch.setattr(dual_solver, "_pair_steps", _decomposition_only)
+    monkeypatch.setattr(dual_solver, "MAX_ROUNDS", 10)
+    monkeypatch.setattr(dual_solver, "MAX_WORK", 100)
+    monkeypatch.setattr(dual_solver, "LARGEST_WORK", 100)
+    X, y = _moons(500)
+    result = _fit(X, y, 1000.0, 30.0)
+    assert result.converged and result.relative_gap <= 1e-8
+    reference = SVC(C=1000.0, gamma=30.0, tol=1e-10).fit(X, y)   # reference, tol 1e-10
+    alpha = np.zeros(len(y))
+    alpha[reference.support_] = np.abs(reference.dual_coef_.ravel())
+    theirs = _dual(alpha, X, y, 30.0)
+    assert result.rounds == 10                    # the loop ran out; the exact solve ended it
+    assert result.dual_objective >= theirs - 1e-9 * abs(theirs)
+
+
 def test_a_two_row_cache_gives_the_same_fit(monkeypatch):
     X, y = _blobs(300)
     roomy = _fit(X, y, 10.0, 2.0)

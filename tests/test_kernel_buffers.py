@@ -67,3 +67,14 @@ def test_small_caches_leave_the_kept_buffer_alone():
     assert not np.shares_memory(small.store, memory)
     again = KernelColumns(X, _gaussian(X, 1.0))
     assert np.shares_memory(_memory(again), memory)
+
+
+def test_a_block_larger_than_the_cache_is_computed_afresh():
+    # K from the formula k(x, z) = exp(-gamma |x - z|^2), written out here
+    X = _points(300)
+    columns = KernelColumns(X, _gaussian(X, 2.0), budget=8 * 300 * 70)   # 70 columns fit
+    idx = np.arange(0, 300, 2)                                           # 150 asked for
+    squared = ((X[idx][:, None, :] - X[idx][None, :, :]) ** 2).sum(axis=2)
+    np.testing.assert_allclose(columns.block(idx), np.exp(-2.0 * squared), rtol=1e-12,
+                               atol=1e-15)
+    assert (columns.slot >= 0).sum() == 0          # nothing kept: the buffer is untouched

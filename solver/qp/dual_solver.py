@@ -53,7 +53,8 @@ GAP_TARGET = 5e-9       # relative duality gap of the whole problem (issue 13 as
 GAP_ACCEPT = 1e-8       # ... and what a fit that stalls or runs out of rounds may still end at
                         # (n = 10,000 moons, gamma 100, C 1 stalled at 5.8e-9 on rounding)
 STALL_ROUNDS = 6        # rounds in a row without progress before giving up
-STEADY_ROUNDS = 3       # rounds with the same number free before an exact solve on them all
+STEADY_ROUNDS = 2       # rounds with the same number free before an exact solve on them all
+STEADY_SHARE = 0.01     # ... within this share of it
 FACE_TRIES = 2          # ... tried at most this often in one fit
 PROGRESS = 0.99         # a round that leaves the gap above this share of the best is no progress
 SNAP = 1e-6             # when the exact face step fails: alphas this close to a bound are put on it
@@ -69,6 +70,7 @@ LOW_RANK_RELTOL = 1e-4
 POOR_RESIDUAL = 0.9      # largest residual k(x, x) of the factor that still guides well
 POOR = object()          # the low-rank guess would be poor
 PAIR_STEPS_ALL_STAGES = 2_000   # points up to which pair steps go through every stage
+LARGE_STAGES = 2                # ... and above, the stages they go through
 
 
 def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
@@ -109,7 +111,7 @@ def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start, columns=None):
         start = feasible(np.clip(alpha_start, 0.0, upper), y, margin)
     # on many points the tight stages cost more than the decomposition's rounds from
     # where the first two left off (n = 10,000, gamma 10, C 1: 22 s against 6.6 s)
-    stages = len(smo.VIOLATIONS) if len(y) <= PAIR_STEPS_ALL_STAGES else 2
+    stages = len(smo.VIOLATIONS) if len(y) <= PAIR_STEPS_ALL_STAGES else LARGE_STAGES
     found = smo.solve_rbf(X, y, upper, gamma, GAP_TARGET, start, columns, stages=stages)
     if not found.optimal:
         log.debug("pair steps stopped at gap %.1e: the decomposition goes on", found.gap)
@@ -187,10 +189,10 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
                 status = "optimal"
                 break
         free_now = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
-        steady = steady + 1 if free_now == free_before else 0
+        steady = steady + 1 if abs(free_now - free_before) <= STEADY_SHARE * free_now else 0
         free_before = free_now
         if not hard and steady >= STEADY_ROUNDS and tries < FACE_TRIES \
-                and free_now <= min(smo.FACE_LIMIT, columns.capacity):
+                and free_now <= smo.FACE_LIMIT:
             tries += 1
             done = smo.finish_on_face(columns, y, upper, alpha, gradient, GAP_TARGET)
             log.debug("   exact solve on the %d free: %s", free_now, done is not None)
@@ -253,8 +255,7 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
         b, gap, violation = _certificate(alpha, gradient, y, upper)
         done = None
         if not hard and gap > GAP_TARGET and \
-                np.count_nonzero((alpha > 0) & (alpha < upper)) <= min(smo.FACE_LIMIT,
-                                                                      columns.capacity):
+                np.count_nonzero((alpha > 0) & (alpha < upper)) <= smo.FACE_LIMIT:
             done = smo.finish_on_face(columns, y, upper, alpha, gradient, GAP_TARGET)
         if done is not None:
             alpha, F, b, gap = done

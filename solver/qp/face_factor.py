@@ -35,6 +35,8 @@ class FaceFactor:
         self.columns = columns
         self.base = None            # S0, sorted indices
         self.factor = None
+        self.ones = None            # K_00^-1 1
+        self.solved = {}
 
     def solve(self, free, F, excess):
         """(d over ``free``, b), or None when K_SS admits no Cholesky factor."""
@@ -47,14 +49,24 @@ class FaceFactor:
         m, a, k = len(base), len(added), len(dropped)
         where_dropped = np.searchsorted(base, dropped)
         K_0A = self.columns.rows(added)[:, base].T if a else np.zeros((m, 0))
-        right = np.empty((m, 2 + a + k))
+        # K_00^-1 of F changes every step; those of the columns of A and D are kept
+        # (D and A change by a few variables a step: one solve with few right sides)
+        new_added = [v for v in added.tolist() if v not in self.solved]
+        new_dropped = [v for v in dropped.tolist() if v not in self.solved]
+        right = np.zeros((m, 1 + len(new_added) + len(new_dropped)))
         right[:, 0] = F[base]
-        right[:, 1:1 + a] = K_0A
-        right[:, 1 + a] = 1.0
-        right[:, 2 + a:] = 0.0
-        right[where_dropped, 2 + a + np.arange(k)] = 1.0
+        if new_added:
+            right[:, 1:1 + len(new_added)] = K_0A[:, np.searchsorted(added, new_added)]
+        right[np.searchsorted(base, new_dropped), 1 + len(new_added) + np.arange(
+            len(new_dropped))] = 1.0
         Z = sla.cho_solve(self.factor, right, check_finite=False)
-        z_F, Z_A, z_1, Z_D = Z[:, 0], Z[:, 1:1 + a], Z[:, 1 + a], Z[:, 2 + a:]
+        for column, v in enumerate(new_added + new_dropped, start=1):
+            self.solved[v] = Z[:, column]
+        z_F, z_1 = Z[:, 0], self.ones
+        Z_A = np.column_stack([self.solved[v] for v in added.tolist()]) if a \
+            else np.zeros((m, 0))
+        Z_D = np.column_stack([self.solved[v] for v in dropped.tolist()]) if k \
+            else np.zeros((m, 0))
         # x0 = z_F - Z_A xA - z_1 b - Z_D mu; the rows of A, the sum and D give (xA, b, mu)
         size = a + 1 + k
         G = np.zeros((size, size))
@@ -109,4 +121,6 @@ class FaceFactor:
             self.base = None
             return False
         self.base = np.array(free)
+        self.ones = sla.cho_solve(self.factor, np.ones(len(free)), check_finite=False)
+        self.solved = {}           # variable -> K_00^-1 of its column (added) or unit (dropped)
         return True

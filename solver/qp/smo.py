@@ -217,7 +217,7 @@ def _face_steps(columns, y, upper, alpha, F, limit, tally, patient=False, far=No
     factor = FaceFactor(columns)      # large free sets: one factor, updated step to step
     for _ in range(limit):
         free = np.flatnonzero(S)
-        if len(free) > min(FACE_LIMIT, columns.capacity):
+        if len(free) > FACE_LIMIT:
             return False
         if len(free):
             tally[0] += 1

@@ -84,6 +84,15 @@ def _fit(X, y, config, warm_start) -> FitResult:
     limits.check_problem_scale(Xs, config, penalties)
     solve = _solve_primal if config.uses_feature_map else _solve_dual
     solved = solve(X, Xs, y, penalties, config, shift, scale, warm_start)
+    try:
+        return _result(X, y, penalties, config, solved, time.perf_counter() - start)
+    except ConvergenceError:
+        if not config.uses_feature_map:
+            raise
+    # once more with iterative refinement in every KKT solve: rounding in the reduced
+    # KKT system can stall cvxopt near its tolerance (a 36-point fit: 50 iterations,
+    # inexact multipliers; refined, 12 and optimal)
+    solved = _solve_primal(X, Xs, y, penalties, config, shift, scale, warm_start, refinement=1)
     return _result(X, y, penalties, config, solved, time.perf_counter() - start)
 
 
@@ -102,12 +111,13 @@ class _Solved:
     working_set: int = 0
 
 
-def _solve_primal(X, Xs, y, penalties, config, shift, scale, warm_start) -> _Solved:
+def _solve_primal(X, Xs, y, penalties, config, shift, scale, warm_start,
+                  refinement=0) -> _Solved:
     """Linear and polynomial kernels: the primal over the exact feature map phi."""
     phi = config.kernel_spec.features(Xs, config)
     guess = None if warm_start is None else y * warm_start.decision_function(X)
     sol = solve_primal(phi, y, None if config.hard_margin else penalties, config.options,
-                       guess_margin=guess)
+                       guess_margin=guess, refinement=refinement)
     model = DecisionModel(config.kernel, config.gamma, config.degree, config.offset,
                           shift, scale, sol.b, feature_weights=sol.w)
     alpha = np.clip(sol.alpha, 0.0, penalties)

@@ -39,20 +39,21 @@ log = logging.getLogger(__name__)   # rounds at DEBUG level: logging.getLogger('
 
 
 def solve_primal(phi: np.ndarray, y: np.ndarray, penalties: np.ndarray | None, options,
-                 guess_margin: np.ndarray | None = None) -> PrimalSolution:
+                 guess_margin: np.ndarray | None = None, refinement: int = 0) -> PrimalSolution:
     """Solve the primal; ``penalties`` None is a hard margin.  ``guess_margin``
-    (y_i f_i from a previous fit) seeds the split."""
+    (y_i f_i from a previous fit) seeds the split; ``refinement``: see solve_primal_qp."""
     if penalties is None:
         check_separable(phi, y)
     n = len(y)
     if n <= FULL_QP_LIMIT:
-        return solve_primal_qp(phi, y, penalties, options)
+        return solve_primal_qp(phi, y, penalties, options, refinement=refinement)
     if guess_margin is None:
         guess_margin = _margins_from_subsample(phi, y, penalties, options)
-    return _solve_on_working_set(phi, y, penalties, options, guess_margin)
+    return _solve_on_working_set(phi, y, penalties, options, guess_margin, refinement)
 
 
-def _solve_on_working_set(phi, y, penalties, options, guess_margin) -> PrimalSolution:
+def _solve_on_working_set(phi, y, penalties, options, guess_margin,
+                          refinement=0) -> PrimalSolution:
     n = len(y)
     tol = max(1e-7, 10 * options.feastol)
     work = np.zeros(n, dtype=bool)
@@ -72,7 +73,7 @@ def _solve_on_working_set(phi, y, penalties, options, guess_margin) -> PrimalSol
             linear_v = -(penalties[held_in] @ design[held_in])
         widx = np.flatnonzero(work)
         sol = solve_primal_qp(phi[widx], y[widx], None if penalties is None
-                              else penalties[widx], options, linear_v)
+                              else penalties[widx], options, linear_v, refinement)
         iterations += sol.iterations
         margin = design @ np.append(sol.w, sol.b)                  # y_i f(x_i)
         outside_bad = ~work & ~inside & (margin < 1.0 - tol)

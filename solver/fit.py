@@ -92,8 +92,9 @@ def _fit(X, y, config, warm_start) -> FitResult:
     # once more with iterative refinement in every KKT solve: rounding in the reduced
     # KKT system can stall cvxopt near its tolerance (a 36-point fit: 50 iterations,
     # inexact multipliers; refined, 12 and optimal)
-    solved = _solve_primal(X, Xs, y, penalties, config, shift, scale, warm_start, refinement=1)
-    return _result(X, y, penalties, config, solved, time.perf_counter() - start)
+    again = _solve_primal(X, Xs, y, penalties, config, shift, scale, warm_start, refinement=1)
+    again = replace(again, iterations=solved.iterations + again.iterations)   # both tries
+    return _result(X, y, penalties, config, again, time.perf_counter() - start)
 
 
 @dataclass(frozen=True)

@@ -55,7 +55,8 @@ GAP_ACCEPT = 1e-8       # ... and what a fit that stalls or runs out of rounds m
 STALL_ROUNDS = 6        # rounds in a row without progress before giving up
 STEADY_ROUNDS = 2       # rounds with the same number free before an exact solve on them all
 STEADY_SHARE = 0.01     # ... within this share of it
-FACE_TRIES = 2          # ... tried at most this often in one fit
+FACE_TRIES = 4          # ... tried at most this often in one fit,
+TRY_AGAIN = 0.1         # ... each time the gap fell to this share of the last try's
 PROGRESS = 0.99         # a round that leaves the gap above this share of the best is no progress
 SNAP = 1e-6             # when the exact face step fails: alphas this close to a bound are put on it
 log = logging.getLogger(__name__)   # rounds at DEBUG level
@@ -171,6 +172,7 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
     failures = 0                                  # rounds the active-set method did not end
     best_gap = previous_gap = np.inf              # the smallest gap before this round's
     steady, free_before, tries = 0, -1, 0         # rounds the free count held; exact solves
+    tried_gap = np.inf                            # the gap at the last one
     for rounds in range(1, MAX_ROUNDS + 1):
         b, gap, violation = _certificate(alpha, gradient, y, upper)
         best_gap = min(best_gap, previous_gap)
@@ -192,8 +194,9 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
         steady = steady + 1 if abs(free_now - free_before) <= STEADY_SHARE * free_now else 0
         free_before = free_now
         if not hard and steady >= STEADY_ROUNDS and tries < FACE_TRIES \
+                and gap <= TRY_AGAIN * tried_gap \
                 and free_now <= smo.FACE_LIMIT:
-            tries += 1
+            tries, tried_gap = tries + 1, gap
             done = smo.finish_on_face(columns, y, upper, alpha, gradient, GAP_TARGET)
             log.debug("   exact solve on the %d free: %s", free_now, done is not None)
             if done is not None:

@@ -16,7 +16,7 @@ ON_MARGIN = "on_margin"
 INSIDE = "inside"
 MISCLASSIFIED = "misclassified"
 STATUSES = (OUTSIDE, ON_MARGIN, INSIDE, MISCLASSIFIED)
-ROUNDING_SLACK = 1e-12     # slack of a point on the margin below which it is rounding
+MARGIN_SLACK = 1e-7        # slack of a point on the margin within the solver's accuracy
 STATUS_TEXT = {
     OUTSIDE: "outside the margin",
     ON_MARGIN: "on the margin",
@@ -94,10 +94,12 @@ class FitResult:
     @cached_property
     def slack(self) -> np.ndarray:
         """xi_i = max(0, 1 - y_i f(x_i)); exactly 0 on a point on the margin whose
-        y_i f(x_i) misses 1 by rounding alone (at most ROUNDING_SLACK: an exact solve
-        leaves 1 - 2e-16 there, which read as a slack of 2.2e-16)."""
+        y_i f(x_i) misses 1 by no more than the accuracy its status was judged with
+        (MARGIN_SLACK, the smallest tolerance of ``fit._classify``): an exact solve
+        leaves 1 - 2e-16 there, an interior-point one 1 - 1e-9, which read as slack.
+        The objectives keep the solver's own figures."""
         slack = np.maximum(0.0, 1.0 - self.functional_margin)
-        slack[(self.status == ON_MARGIN) & (slack <= ROUNDING_SLACK)] = 0.0
+        slack[(self.status == ON_MARGIN) & (slack <= MARGIN_SLACK)] = 0.0
         return _frozen(slack)
 
     @cached_property

@@ -205,14 +205,3 @@ def test_points_on_the_margin_report_no_slack_from_rounding():
     np.testing.assert_array_equal(result.slack[off],
                                   np.maximum(0.0, 1.0 - result.functional_margin[off]))
 
-
-def test_a_separable_linear_fit_reports_no_slack_at_all():
-    # two blobs 8 standard deviations apart: separable, so at this C the soft-margin
-    # optimum is the hard-margin one and every xi_i is 0 (its support vectors sit on the
-    # margin to the interior point's accuracy, y f = 1 - 1e-9, which read as slack)
-    X, labels = make_blobs(n_samples=80, centers=[[0, 0], [8, 8]], cluster_std=1.0,
-                           random_state=2)
-    y = np.where(labels == 1, 1, -1)
-    result = fit(X, y, FitConfig(C=10.0, kernel="linear"))
-    assert result.converged and (result.functional_margin >= 1 - 1e-7).all()
-    assert (result.slack == 0.0).all() and result.penalty_term == 0.0

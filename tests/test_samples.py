@@ -55,6 +55,16 @@ def test_the_gauge_sample_is_linearly_separable():
     fit(data.X, data.y, FitConfig(hard_margin=True))
 
 
+def test_the_gauge_sample_at_c_10_reports_no_slack_on_its_margin():
+    # separable, and at C = 10 no alpha reaches C, so the soft-margin optimum is the hard
+    # one and every xi_i is 0 (KKT, common practice); the interior point leaves
+    # y f = 1 - 3.5e-9 on two support vectors, which read as sum C_i xi_i = 3.5e-8
+    data = experiment_of(SAMPLES / "1-pilot-batch-gauges.csv").dataset
+    result = fit(data.X, data.y, FitConfig(C=10.0))
+    assert (result.alpha < 10.0).all() and (result.status != "inside").all()
+    assert (result.slack == 0.0).all() and result.penalty_term == 0.0
+
+
 def test_the_proofing_sample_overlaps():
     data = experiment_of(SAMPLES / "2-proofing-trials.csv").dataset
     with pytest.raises(NotSeparableError):

@@ -124,14 +124,3 @@ def test_iris_versicolor_and_virginica_fit_with_a_finite_C():
     result = fit(*_iris_pair(1, 2), FitConfig(C=1.0))
     assert 0 < result.training_error < 0.1
 
-
-def test_points_on_the_margin_of_a_soft_fit_report_exactly_no_slack():
-    # The three points above with C = 10: the hard-margin solution w = (1, 1), b = -1
-    # has multipliers alpha = (2, 1, 1) (from sum alpha_i y_i x_i = w and
-    # sum alpha_i y_i = 0), all below C, so it is also the soft-margin optimum and
-    # xi = 0 on all three.  The interior point leaves y f = 1 - 1e-9 or so there,
-    # which must not read as slack.
-    result = fit([[0, 0], [2, 0], [0, 2]], [-1, 1, 1], FitConfig(C=10.0))
-    np.testing.assert_allclose(result.w, [1.0, 1.0], atol=1e-6)
-    assert (result.status == ON_MARGIN).all()
-    assert (result.slack == 0.0).all() and result.penalty_term == 0.0

@@ -23,6 +23,11 @@ def _standardised(X):
     return (X - X.mean(axis=0)) / X.std(axis=0)
 
 
+def _set(monkeypatch, module, **values):
+    for name, value in values.items():
+        monkeypatch.setattr(module, name, value)
+
+
 def _decomposition_only(X, y, upper, gamma, guess_margin, alpha_start, columns=None):
     """Stands in for dual_solver._pair_steps: no pair steps, the decomposition from the start
     (its own cold start when there is no alpha_start)."""
@@ -88,9 +93,7 @@ def test_fast_path_and_decomposition_reach_the_same_optimum(gamma, C, monkeypatc
 
 def test_the_decomposition_finishes_what_the_pair_steps_leave(monkeypatch):
     """Stopped after 50 pair steps and no face steps, the fit is still exact."""
-    monkeypatch.setattr(smo, "STEP_LIMIT", 50)
-    monkeypatch.setattr(smo, "FACE_STEPS", 0)
-    monkeypatch.setattr(smo, "FEW_STEPS", 0)
+    _set(monkeypatch, smo, STEP_LIMIT=50, FACE_STEPS=0, FEW_STEPS=0)
     X, y = _moons(400)
     result = _fit(X, y, 10.0, 5.0)
     assert result.converged and result.relative_gap <= 1e-8
@@ -102,10 +105,8 @@ def test_a_decomposition_cut_short_ends_on_an_exact_solve_of_its_free_set(monkey
     """Ten rounds on working sets of 100 are far from enough here (their gap is still
     0.5 at the end, measured); the exact solve on the whole free set that the
     decomposition tries before giving up certifies the optimum."""
-    monkeypatch.setattr(dual_solver, "_pair_steps", _decomposition_only)
-    monkeypatch.setattr(dual_solver, "MAX_ROUNDS", 10)
-    monkeypatch.setattr(dual_solver, "MAX_WORK", 100)
-    monkeypatch.setattr(dual_solver, "LARGEST_WORK", 100)
+    _set(monkeypatch, dual_solver, _pair_steps=_decomposition_only, MAX_ROUNDS=10,
+         MAX_WORK=100, LARGEST_WORK=100)
     X, y = _moons(500)
     result = _fit(X, y, 1000.0, 30.0)
     assert result.converged and result.relative_gap <= 1e-8

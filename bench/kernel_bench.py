@@ -12,6 +12,8 @@ polynomial kernels (degree 2 and 3) on the blobs at every n, warm steps at
 n = 1,000 (C +10%, gamma +10%) and the peak memory of the largest cell.  Fits after the first in a run reuse the kernel-row buffer the
 previous one handed back (``kernel_cache.BUFFERS``), as fits in the window do;
 the first pays the page faults of fresh memory (about 0.1-0.4 s at 200 MiB).
+Cold cells do not reuse the kernel rows a cell before them computed on the same
+points (``kernel_cache.RECENT`` is emptied first); warm steps do, as in the window.
 
 Environment (to shrink the grid for a quick look):
   KERNEL_BENCH_N        sizes, e.g. "1000" (default "1000,5000,10000")
@@ -43,7 +45,7 @@ from solver import FitConfig, fit
 from solver.errors import ConvergenceError
 from solver.kernels import rbf_matrix
 from solver.kernels.polynomial import feature_map
-from solver.qp.kernel_cache import BUFFERS
+from solver.qp.kernel_cache import BUFFERS, RECENT
 
 
 def _env_list(name, default, cast=float):
@@ -91,6 +93,8 @@ def svc_alpha(svc, n):
 
 
 def _ours(X, y, config, warm=None):
+    if warm is None:
+        RECENT.clear()       # a cold fit computes its kernel rows, even after a cell on the same points
     start = time.perf_counter()
     try:
         result = fit(X, y, config, warm_start=warm)
@@ -181,6 +185,7 @@ def warm_steps(name="blobs", n=1_000, steps=5):
 
 def peak_memory(name, n, gamma, C):
     X, y = shape(name, n)
+    RECENT.clear()
     BUFFERS.clear()          # count the kernel-row buffer, which earlier fits left in the pool
     tracemalloc.start()
     fit(X, y, FitConfig(C=C, kernel="rbf", gamma=gamma))

@@ -19,7 +19,7 @@ from sklearn.svm import SVC
 
 from solver import FitConfig, fit
 from solver.errors import ConvergenceError
-from solver.qp import dual_solver, smo
+from solver.qp import dual_solver, kernel_cache, smo
 from solver.qp.kernel_cache import KernelColumns
 
 
@@ -202,3 +202,40 @@ def test_kernel_columns_match_the_formula_also_after_eviction():
         np.testing.assert_allclose(columns.product(idx, weights), K[:, idx] @ weights,
                                    atol=1e-12)
     assert columns.nbytes <= 8 * 300 * 70
+
+
+def _reference_check(X, y, result, C, gamma):
+    """Dual objective at least libsvm's at tol 1e-10 (scikit-learn SVC), gap <= 1e-8."""
+    svc = SVC(C=C, kernel="rbf", gamma=gamma, tol=1e-10).fit(X, y)
+    alpha_svc = np.zeros(len(y))
+    alpha_svc[svc.support_] = np.abs(svc.dual_coef_[0])
+    _, dual_svc, _ = _objectives(X, y, alpha_svc, svc.intercept_[0], C, gamma)
+    primal, dual, _ = _objectives(X, y, result.alpha, result.b, C, gamma)
+    assert abs(primal - dual) / max(1.0, abs(primal)) <= 1e-8       # recomputed here
+    assert dual >= dual_svc - 1e-9 * abs(dual_svc)
+
+
+def test_a_C_step_reuses_the_last_fits_kernel_rows():
+    X, y = _blobs(300)
+    base = FitConfig(C=1.0, kernel="rbf", gamma=2.0)
+    first = fit(X, y, base)
+    kept = kernel_cache.RECENT.take(X, ("rbf", 2.0))
+    assert kept is not None
+    computed = kept.computed
+    kernel_cache.RECENT.keep(("rbf", 2.0), kept)
+    step = fit(X, y, base.with_changes(C=1.1), warm_start=first)
+    again = kernel_cache.RECENT.take(X, ("rbf", 2.0))
+    assert again is kept and again.computed == computed      # no kernel value computed again
+    _reference_check(X, y, step, 1.1, 2.0)
+
+
+def test_kept_kernel_rows_are_not_used_for_moved_points_or_another_gamma():
+    X, y = _blobs(300)
+    first = fit(X, y, FitConfig(C=1.0, kernel="rbf", gamma=2.0))
+    # a support vector dragged across, the same array changed in place
+    dragged = int(np.argmax(first.alpha))
+    X[dragged] = -X[dragged]
+    moved = fit(X, y, FitConfig(C=1.0, kernel="rbf", gamma=2.0))
+    _reference_check(X, y, moved, 1.0, 2.0)
+    wider = fit(X, y, FitConfig(C=1.0, kernel="rbf", gamma=0.5))
+    _reference_check(X, y, wider, 1.0, 0.5)

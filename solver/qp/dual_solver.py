@@ -41,7 +41,7 @@ from solver.qp.dual_qp import DualSolution, check_conflicting_duplicates, solve_
 from solver.qp.active_set import active_set
 from solver.qp.dual_polish import polish
 from solver.qp.dual_start import alpha_from_margins, feasible, subsample
-from solver.qp.kernel_cache import KernelColumns
+from solver.qp.kernel_cache import RECENT, KernelColumns
 from solver.qp.low_rank import pivoted_cholesky, solve_low_rank
 
 FULL_QP_LIMIT = 250     # up to this many points: the first round takes them all
@@ -89,17 +89,30 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
     """
     with _BLAS.limit(limits=1, user_api="blas"):
         if rbf_gamma is not None and np.isfinite(penalties).all():
-            # one row cache for the pair steps and, if they do not certify, the rounds
-            columns = smo.rbf_columns(X, rbf_gamma)
-            fast, found = _pair_steps(X, y, penalties, rbf_gamma, guess_margin,
-                                      alpha_start, columns=columns)
-            if fast is not None:
-                return fast
-            rest = _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin,
-                               found.alpha, columns)
-            # the count a ConvergenceError reports includes the steps before the hand-over
-            return replace(rest, iterations=rest.iterations + found.steps + found.face_steps)
+            # one row cache for the pair steps and, if they do not certify, the rounds;
+            # the last fit's, when it had these points and this gamma (a C step)
+            key = ("rbf", float(rbf_gamma))
+            columns = RECENT.take(np.asarray(X, dtype=float), key)
+            if columns is None:
+                columns = smo.rbf_columns(X, rbf_gamma)
+            try:
+                return _fast_then_rounds(X, y, penalties, kernel_matrix, options,
+                                         guess_margin, alpha_start, rbf_gamma, columns)
+            finally:
+                RECENT.keep(key, columns)
         return _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start)
+
+
+def _fast_then_rounds(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start,
+                      gamma, columns) -> DualSolution:
+    fast, found = _pair_steps(X, y, penalties, gamma, guess_margin, alpha_start,
+                              columns=columns)
+    if fast is not None:
+        return fast
+    rest = _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, found.alpha,
+                       columns)
+    # the count a ConvergenceError reports includes the steps before the hand-over
+    return replace(rest, iterations=rest.iterations + found.steps + found.face_steps)
 
 
 def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start, columns=None):

@@ -166,8 +166,8 @@ def finish_on_face(columns, y, upper, alpha, gradient, gap_target):
 
 
 def rbf_columns(X, gamma) -> KernelColumns:
-    """A kernel row cache of CACHE_BYTES for the RBF kernel on X."""
-    return KernelColumns(np.ascontiguousarray(X, dtype=float),
+    """A kernel row cache of CACHE_BYTES for the RBF kernel on (a private copy of) X."""
+    return KernelColumns(np.array(X, dtype=float, order="C"),
                          lambda A, B: rbf_matrix(A, B, gamma), budget=CACHE_BYTES)
 
 

@@ -1,8 +1,9 @@
-"""A place for numba's cache of the compiled RBF pair steps, wherever the solver is installed.
+"""A place for numba's cache of the compiled RBF steps, wherever the solver is installed.
 
-``solver/qp/smo_core.py`` compiles with ``cache=True``: numba keeps the
-compiled code beside the module (``solver/qp/__pycache__``) or, when that
-folder is read-only, in the user's cache folder (``~/.cache/numba``).  When
+``solver/qp/smo_core.py`` (pair steps) and ``face_core.py`` (face steps) compile
+with ``cache=True``: numba keeps the compiled code beside the module
+(``solver/qp/__pycache__``) or, when that folder is read-only, in the user's
+cache folder (``~/.cache/numba``).  When
 neither can be written (a system-wide install run by a user whose home is
 read-only, a locked-down container) numba refuses to import the module at all
 ("cannot cache function ...: no locator available"), and with it every fit,
@@ -18,7 +19,7 @@ import logging
 import os
 import tempfile
 
-COMPILED = "solver.qp.smo_core"
+COMPILED = ("solver.qp.smo_core", "solver.qp.face_core")
 log = logging.getLogger(__name__)
 
 
@@ -28,9 +29,9 @@ def fallback_folder() -> str:
 
 
 def import_compiled_steps():
-    """Import the compiled pair steps, finding numba a writable cache folder if need be."""
+    """Import the compiled steps, finding numba a writable cache folder if need be."""
     try:
-        return importlib.import_module(COMPILED)
+        return [importlib.import_module(name) for name in COMPILED]
     except RuntimeError as exc:
         if "no locator available" not in str(exc) or os.environ.get("NUMBA_CACHE_DIR"):
             raise
@@ -40,4 +41,4 @@ def import_compiled_steps():
     os.environ["NUMBA_CACHE_DIR"] = folder
     from numba.core import config
     config.reload_config()          # numba reads NUMBA_CACHE_DIR when it is asked again
-    return importlib.import_module(COMPILED)
+    return [importlib.import_module(name) for name in COMPILED]

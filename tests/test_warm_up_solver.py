@@ -1,14 +1,15 @@
-"""solver.warm_up: one tiny RBF fit leaves the compiled pair steps ready for real fits."""
+"""solver.warm_up: one tiny RBF fit leaves the compiled pair and face steps ready for real fits."""
 
 import numpy as np
 from numba.core.dispatcher import Dispatcher
 from sklearn.svm import SVC
 
 from solver import FitConfig, fit
-from solver.qp import smo_core
+from solver.qp import face_core, smo_core
 from solver.warm_up import prepare_kernel_solver
 
-COMPILED = [f for f in vars(smo_core).values() if isinstance(f, Dispatcher)]   # every compiled function
+COMPILED = [f for module in (smo_core, face_core) for f in vars(module).values()
+            if isinstance(f, Dispatcher)]                          # every compiled function
 
 
 def _ring(n=200, seed=3):
@@ -20,12 +21,16 @@ def _ring(n=200, seed=3):
 
 
 def test_after_the_warm_up_rbf_fits_compile_nothing_more_whatever_the_number_type():
-    assert smo_core.smo_rbf in COMPILED
+    assert smo_core.smo_rbf in COMPILED and face_core.face_steps in COMPILED
     prepare_kernel_solver()
     before = [len(f.signatures) for f in COMPILED]
     X, y = _ring()
     for gamma, C in ((2, 10), (0.7, 1.0), (1, 3)):
-        assert fit(X, y, FitConfig(kernel="rbf", C=C, gamma=gamma)).solver_status == "optimal"
+        config = FitConfig(kernel="rbf", C=C, gamma=gamma)
+        first = fit(X, y, config)
+        assert first.solver_status == "optimal"
+        step = fit(X, y, config.with_changes(C=1.1 * C), warm_start=first)   # face steps
+        assert step.solver_status == "optimal"
     assert [len(f.signatures) for f in COMPILED] == before
 
 

@@ -120,6 +120,8 @@ class KernelColumns:
         self.stamp = np.zeros(self.capacity, dtype=np.int64)
         self.clock = 0
         self.computed = 0                                # kernel entries evaluated
+        self.rbf_gamma = None           # set for an RBF kernel: compiled code computes rows
+        self.kept_factor = None         # the face steps' last Cholesky factor (face_kept)
 
     @property
     def nbytes(self) -> int:

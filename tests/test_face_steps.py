@@ -1,0 +1,115 @@
+"""The compiled face steps (solver.qp.face_core) and their kept factor (face_kept).
+
+Sources of the expected values, named beside each check:
+- the Cholesky factor's defining identity K_SS = LL', with K written out here
+  from the formula exp(-gamma |a - b|^2) (common practice, no source);
+- scikit-learn's SVC (libsvm) at tol=1e-10 on data scikit-learn generates
+  (make_blobs), through test_kernel_fits._reference_check.
+"""
+
+import numpy as np
+import pytest
+
+from solver import FitConfig, fit
+from solver.qp import face_core, face_kept, kernel_cache, smo
+
+from test_kernel_fits import _blobs, _gaussian, _reference_check
+
+
+def _factor(K, room):
+    L = np.zeros((room, room))
+    L[:len(K), :len(K)] = np.linalg.cholesky(K)
+    return L
+
+
+@pytest.mark.parametrize("position", [0, 7, 18, 19])
+def test_a_deleted_variable_leaves_the_factor_of_the_others(position):
+    rng = np.random.default_rng(4)
+    X = rng.normal(size=(20, 2))
+    K = _gaussian(X, X, 2.0)
+    L, members = _factor(K, 24), np.arange(24)
+    face_core._delete(L, 20, members, position, np.empty(24))
+    kept = np.delete(np.arange(20), position)
+    assert list(members[:19]) == list(kept)
+    low = np.tril(L[:19, :19])
+    np.testing.assert_allclose(low @ low.T, K[np.ix_(kept, kept)], atol=1e-13)
+
+
+def test_an_appended_variable_extends_the_factor_and_a_near_copy_is_refused():
+    rng = np.random.default_rng(5)
+    X = rng.normal(size=(13, 2))
+    K = _gaussian(X, X, 2.0)
+    L, members = _factor(K[:12, :12], 16), np.arange(16)
+    assert face_core._append(L, 12, members, 12, K[12])
+    low = np.tril(L[:13, :13])
+    np.testing.assert_allclose(low @ low.T, K, atol=1e-13)
+    # a point 1e-9 from another: k is 1 - 2e-18 away from the copy's row, K_SS singular
+    X[12] = X[3] + 1e-9
+    near = _gaussian(X, X, 2.0)[12]
+    assert not face_core._append(L, 12, members, 12, near)
+    assert face_core._add(L, 12, members, 12, near, False, 16) is True    # dense from here
+    assert members[12] == 12
+    assert face_core._add(L, 12, members, 12, near, False, 12) is None    # ... up to `wide`
+
+
+def _spy(monkeypatch):
+    """Record (status, steps, members kept) of every compiled face-steps call."""
+    calls, compiled = [], face_core.face_steps
+
+    def spy(*args):
+        out = compiled(*args)
+        calls.append((int(out[0]), int(out[1]), int(out[3])))
+        return out
+    monkeypatch.setattr(face_kept.face_core, "face_steps", spy)
+    return calls
+
+
+def test_a_C_step_ends_in_the_compiled_steps_from_the_kept_factor(monkeypatch):
+    X, y = _blobs(300)
+    base = FitConfig(C=1.0, kernel="rbf", gamma=10.0)
+    first = fit(X, y, base)
+    calls = _spy(monkeypatch)
+    fresh = []
+    refactor = face_kept._refactor
+    monkeypatch.setattr(face_kept, "_refactor", lambda *a: fresh.append(1) or refactor(*a))
+    step = fit(X, y, base.with_changes(C=1.1), warm_start=first)
+    assert calls and calls[0][0] == face_core.DONE       # no pair step, no Python step
+    assert step.iterations == calls[0][1]
+    assert fresh == []                    # the factor the last fit left served: K_SS is C-free
+    _reference_check(X, y, step, 1.1, 10.0)
+
+
+def test_compiled_and_python_face_steps_reach_the_reference_optimum(monkeypatch):
+    X, y = _blobs(300)
+    base = FitConfig(C=1.0, kernel="rbf", gamma=2.0)
+    first = fit(X, y, base)
+    compiled = fit(X, y, base.with_changes(C=3.0), warm_start=first)
+    monkeypatch.setattr(face_kept, "available", lambda columns, n: False)
+    kernel_cache.RECENT.clear()
+    python = fit(X, y, base.with_changes(C=3.0), warm_start=first)
+    _reference_check(X, y, compiled, 3.0, 2.0)
+    _reference_check(X, y, python, 3.0, 2.0)
+    np.testing.assert_allclose(compiled.decision, python.decision, atol=1e-6)
+
+
+def test_a_wide_kernels_gamma_step_solves_densely_where_the_factor_fails(monkeypatch):
+    # gamma 0.5, C 100: K_SS on the free set is too near singular to extend its factor
+    # (found by trial on this data: the compiled steps end with the factor given up)
+    X, y = _blobs(300)
+    base = FitConfig(C=100.0, kernel="rbf", gamma=0.5)
+    first = fit(X, y, base)
+    calls = _spy(monkeypatch)
+    step = fit(X, y, base.with_changes(gamma=0.55), warm_start=first)
+    assert calls[0][0] == face_core.DONE and calls[0][2] == -1    # dense solves, no factor
+    assert step.iterations == calls[0][1]                         # nothing else ran
+    _reference_check(X, y, step, 100.0, 0.55)
+
+
+def test_no_factor_is_kept_for_a_fit_too_large_for_a_row_per_point(monkeypatch):
+    monkeypatch.setattr(smo, "CACHE_BYTES", 8 * 300 * 100)   # 100 rows of 300 points
+    kernel_cache.RECENT.clear()                # not the last test's cache of these points
+    X, y = _blobs(300)
+    calls = _spy(monkeypatch)
+    result = fit(X, y, FitConfig(C=1.0, kernel="rbf", gamma=2.0))
+    assert calls == []                                         # the Python steps only
+    _reference_check(X, y, result, 1.0, 2.0)

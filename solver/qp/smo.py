@@ -29,7 +29,6 @@ import cvxopt
 import numpy as np
 from cvxopt import lapack
 
-from solver.kernels import rbf_matrix
 from solver.qp import dual_certify as certify
 from solver.qp import face_core, face_kept, smo_core
 from solver.qp.dual_start import feasible
@@ -173,8 +172,10 @@ def finish_on_face(columns, y, upper, alpha, gradient, gap_target):
 
 def rbf_columns(X, gamma) -> KernelColumns:
     """A kernel row cache of CACHE_BYTES for the RBF kernel on (a private copy of) X."""
+    gamma = float(gamma)
     columns = KernelColumns(np.array(X, dtype=float, order="C"),
-                            lambda A, B: rbf_matrix(A, B, gamma), budget=CACHE_BYTES)
+                            lambda A, B: smo_core.rbf_block(np.ascontiguousarray(A), B, gamma),
+                            budget=CACHE_BYTES)
     columns.rbf_gamma = float(gamma)      # the compiled face steps compute rows themselves
     return columns
 

@@ -34,17 +34,96 @@ import numpy as np
 TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
 
 
+LOG2E = 1.4426950408889634
+LN2_HIGH = 6.93147180369123816490e-01     # ln 2 in two parts (fdlibm's): k ln2_high is exact
+LN2_LOW = 1.90821492927058770002e-10
+
+
+# no "reassoc" among the flags: it would undo the two-part reduction (measured: 100 ulp at
+# x = -700 with it, 1.43 ulp at most on [-700, 0] without)
+@nb.njit(cache=True, nogil=True, fastmath={"contract", "nsz", "arcp", "nnan", "ninf"})
+def exp_negative(values, bits):
+    """values[:] = exp(values) for values <= 0, in place, to 1.5 ulp; exp(x) for x below
+    -708 (under 2.2e-308) is 0.  bits: int64 scratch as long as values.
+
+    libm's exp is a call per entry (10 ns here); this one vectorises (3 ns): exp(x) =
+    2^k exp(r) with k = round(x / ln 2), |r| <= ln2 / 2, exp(r) by its Taylor series to
+    degree 12 (the remainder is below 2e-16), 2^k built from its exponent bits.
+    """
+    for t in range(len(values)):
+        v = max(values[t], -745.0)
+        kf = math.floor(v * LOG2E + 0.5)
+        r = (v - kf * LN2_HIGH) - kf * LN2_LOW
+        p = 1.0 / 479001600.0
+        p = p * r + 1.0 / 39916800.0
+        p = p * r + 1.0 / 3628800.0
+        p = p * r + 1.0 / 362880.0
+        p = p * r + 1.0 / 40320.0
+        p = p * r + 1.0 / 5040.0
+        p = p * r + 1.0 / 720.0
+        p = p * r + 1.0 / 120.0
+        p = p * r + 1.0 / 24.0
+        p = p * r + 1.0 / 6.0
+        p = p * r + 0.5
+        p = p * r + 1.0
+        p = p * r + 1.0
+        k = np.int64(kf) + 1023               # the biased exponent of 2^k
+        if k < 1:
+            k, p = 0, 0.0
+        values[t] = p
+        bits[t] = k << 52
+    scale = bits.view(np.float64)
+    for t in range(len(values)):
+        values[t] *= scale[t]
+
+
 @nb.njit(cache=True, nogil=True)
 def _rbf_row(X, i, gamma, out, act, m):
     """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X))."""
     n, d = X.shape
-    for k in range(m):
-        t = act[k] if m < n else k
-        s = 0.0
-        for c in range(d):
-            diff = X[t, c] - X[i, c]
-            s += diff * diff
-        out[t] = math.exp(-gamma * s)
+    values = out if m == n else np.empty(m)
+    if d == 2 and m == n:                      # two features, every point: vectorises
+        u, v = X[i, 0], X[i, 1]
+        for t in range(n):
+            a, b = X[t, 0] - u, X[t, 1] - v
+            values[t] = -gamma * (a * a + b * b)
+    else:
+        for k in range(m):
+            t = act[k] if m < n else k
+            s = 0.0
+            for c in range(d):
+                diff = X[t, c] - X[i, c]
+                s += diff * diff
+            values[k] = -gamma * s
+    exp_negative(values, np.empty(m, dtype=np.int64))
+    if m < n:
+        for k in range(m):
+            out[act[k]] = values[k]
+
+
+@nb.njit(cache=True, nogil=True)
+def rbf_block(A, B, gamma):
+    """K_ij = exp(-gamma |a_i - b_j|^2) as rows computed like _rbf_row's (KernelColumns'
+    blocks for the RBF kernel: numpy's exp takes 10 ns an entry here, this 3-5 ns)."""
+    n, d = B.shape
+    out = np.empty((len(A), n))
+    bits = np.empty(n, dtype=np.int64)
+    for i in range(len(A)):
+        values = out[i]
+        if d == 2:
+            u, v = A[i, 0], A[i, 1]
+            for t in range(n):
+                a, b = B[t, 0] - u, B[t, 1] - v
+                values[t] = -gamma * (a * a + b * b)
+        else:
+            for t in range(n):
+                s = 0.0
+                for c in range(d):
+                    diff = B[t, c] - A[i, c]
+                    s += diff * diff
+                values[t] = -gamma * s
+        exp_negative(values, bits)
+    return out
 
 
 @nb.njit(cache=True, nogil=True)

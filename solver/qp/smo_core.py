@@ -78,51 +78,54 @@ def exp_negative(values, bits):
 
 
 @nb.njit(cache=True, nogil=True)
+def _scaled_distances(B, a, gamma, values):
+    """values[t] = -gamma |b_t - a|^2 for every row b_t of B (two features: unrolled,
+    which vectorises: a row of 10,000 points in 48 us against 83)."""
+    n, d = B.shape
+    if d == 2:
+        u, v = a[0], a[1]
+        for t in range(n):
+            p, q = B[t, 0] - u, B[t, 1] - v
+            values[t] = -gamma * (p * p + q * q)
+        return
+    for t in range(n):
+        s = 0.0
+        for c in range(d):
+            diff = B[t, c] - a[c]
+            s += diff * diff
+        values[t] = -gamma * s
+
+
+@nb.njit(cache=True, nogil=True)
 def _rbf_row(X, i, gamma, out, act, m):
     """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X))."""
     n, d = X.shape
-    values = out if m == n else np.empty(m)
-    if d == 2 and m == n:                      # two features, every point: vectorises
-        u, v = X[i, 0], X[i, 1]
-        for t in range(n):
-            a, b = X[t, 0] - u, X[t, 1] - v
-            values[t] = -gamma * (a * a + b * b)
-    else:
-        for k in range(m):
-            t = act[k] if m < n else k
-            s = 0.0
-            for c in range(d):
-                diff = X[t, c] - X[i, c]
-                s += diff * diff
-            values[k] = -gamma * s
+    if m == n:
+        _scaled_distances(X, X[i], gamma, out)
+        exp_negative(out, np.empty(n, dtype=np.int64))
+        return
+    values = np.empty(m)
+    for k in range(m):
+        t = act[k]
+        s = 0.0
+        for c in range(d):
+            diff = X[t, c] - X[i, c]
+            s += diff * diff
+        values[k] = -gamma * s
     exp_negative(values, np.empty(m, dtype=np.int64))
-    if m < n:
-        for k in range(m):
-            out[act[k]] = values[k]
+    for k in range(m):
+        out[act[k]] = values[k]
 
 
 @nb.njit(cache=True, nogil=True)
 def rbf_block(A, B, gamma):
     """K_ij = exp(-gamma |a_i - b_j|^2) as rows computed like _rbf_row's (KernelColumns'
     blocks for the RBF kernel: numpy's exp takes 10 ns an entry here, this 3-5 ns)."""
-    n, d = B.shape
-    out = np.empty((len(A), n))
-    bits = np.empty(n, dtype=np.int64)
+    out = np.empty((len(A), len(B)))
+    bits = np.empty(len(B), dtype=np.int64)
     for i in range(len(A)):
-        values = out[i]
-        if d == 2:
-            u, v = A[i, 0], A[i, 1]
-            for t in range(n):
-                a, b = B[t, 0] - u, B[t, 1] - v
-                values[t] = -gamma * (a * a + b * b)
-        else:
-            for t in range(n):
-                s = 0.0
-                for c in range(d):
-                    diff = B[t, c] - A[i, c]
-                    s += diff * diff
-                values[t] = -gamma * s
-        exp_negative(values, bits)
+        _scaled_distances(B, A[i], gamma, out[i])
+        exp_negative(out[i], bits)
     return out
 
 

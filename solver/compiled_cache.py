@@ -1,7 +1,7 @@
 """A place for numba's cache of the compiled RBF steps, wherever the solver is installed.
 
-``solver/qp/smo_core.py`` (pair steps) and ``face_core.py`` (face steps) compile
-with ``cache=True``: numba keeps the compiled code beside the module
+``solver/kernels/rbf_core.py`` (exp), ``solver/qp/smo_core.py`` (pair steps) and
+``face_core.py`` (face steps) compile with ``cache=True``: numba keeps the compiled code beside the module
 (``solver/qp/__pycache__``) or, when that folder is read-only, in the user's
 cache folder (``~/.cache/numba``).  When
 neither can be written (a system-wide install run by a user whose home is
@@ -19,7 +19,7 @@ import logging
 import os
 import tempfile
 
-COMPILED = ("solver.qp.smo_core", "solver.qp.face_core")
+COMPILED = ("solver.kernels.rbf_core", "solver.qp.smo_core", "solver.qp.face_core")
 log = logging.getLogger(__name__)
 
 

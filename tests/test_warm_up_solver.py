@@ -5,10 +5,11 @@ from numba.core.dispatcher import Dispatcher
 from sklearn.svm import SVC
 
 from solver import FitConfig, fit
+from solver.kernels import rbf_core
 from solver.qp import face_core, smo_core
 from solver.warm_up import prepare_kernel_solver
 
-COMPILED = [f for module in (smo_core, face_core) for f in vars(module).values()
+COMPILED = [f for module in (rbf_core, smo_core, face_core) for f in vars(module).values()
             if isinstance(f, Dispatcher)]                          # every compiled function
 
 

@@ -1,8 +1,10 @@
 """Get the compiled parts of the solver ready before anyone waits for them.
 
-The RBF pair steps (``qp/smo_core.py``) are compiled by numba on their first
-call: a few seconds on a machine whose cache is empty, a fraction of a second
-when the compiled code is found in a cache.  ``prepare_kernel_solver`` makes
+The RBF pair and face steps and kernel rows (``qp/smo_core.py``, ``qp/face_core.py``,
+``kernels/rbf_core.py``) are compiled by numba on their first call: about 25 s on
+our 2-core test machine when its cache is empty (8 s before the face steps and
+kernel rows were compiled too), half a second when the compiled code is found in
+a cache.  ``prepare_kernel_solver`` makes
 that first call on a tiny invented problem, so that a program with time to
 spare (the window, just after it opens) pays it before the user asks for a
 kernel fit.  numba compiles a function once per process under its own lock:

@@ -47,9 +47,9 @@ def test_an_appended_variable_extends_the_factor_and_a_near_copy_is_refused():
     X[12] = X[3] + 1e-9
     near = _gaussian(X, X, 2.0)[12]
     assert not face_core._append(L, 12, members, 12, near)
-    assert face_core._add(L, 12, members, 12, near, False, 16) is True    # dense from here
+    assert face_core._add(L, 12, members, 12, near, False, 16) == face_core.DENSE
     assert members[12] == 12
-    assert face_core._add(L, 12, members, 12, near, False, 12) is None    # ... up to `wide`
+    assert face_core._add(L, 12, members, 12, near, False, 12) == face_core.NEITHER  # > wide
 
 
 def _spy(monkeypatch):

@@ -7,7 +7,7 @@ from PySide6.QtCore import QTimer
 
 from app.document.warm_up import SolverWarmUp
 
-READY_MESSAGE = ("getting the Gaussian (RBF) solver ready: a few seconds the first time "
+READY_MESSAGE = ("getting the Gaussian (RBF) solver ready: up to half a minute the first time "
                  "Slackline runs on this computer")
 SAY_AFTER_MS = 400        # a warm-up that is quicker than this (cached) goes unmentioned
 

@@ -32,6 +32,7 @@ import numpy as np
 from solver.qp.smo_core import _slot
 
 DONE, STOPPED, HAND_BACK = 1, 0, -1      # what face_steps returns first
+FACTOR, DENSE, NEITHER = 0, 1, -1        # what _add returns
 PIVOT = 1e-15                            # smallest squared diagonal of L (k_ii = 1): below,
                                          # dense solves
 RESIDUAL = 1e-9                          # face-system residual accepted, relative to max |F_S|
@@ -114,14 +115,14 @@ def _solve(L, m, rhs, u, v):
 @nb.njit(cache=True, nogil=True)
 def _add(L, m, members, j, row_j, dense, wide):
     """Add j to the set: to the factor, or (dense: no factor is kept) to members only.
-    Returns whether the set is dense afterwards (a factor that cannot take j is given up
-    for dense solves, up to ``wide`` members), or None when neither serves."""
+    Returns FACTOR or DENSE, what the set is afterwards (a factor that cannot take j is
+    given up for dense solves, up to ``wide`` members), or NEITHER."""
     if not dense and _append(L, m, members, j, row_j):
-        return False
+        return FACTOR
     if m + 1 > wide:
-        return None
+        return NEITHER
     members[m] = j
-    return True
+    return DENSE
 
 
 @nb.njit(cache=True, nogil=True)
@@ -148,13 +149,56 @@ def _dense_solve(X, gamma, F, members, m, excess, d, rows, slot_of, owner, stamp
         system[r, m] = system[m, r] = 1.0
         right[r] = F[members[r]]
     right[m] = -excess
-    try:
-        solution = np.linalg.solve(system, right)
-    except Exception:       # noqa: BLE001 - numba raises LinAlgError as a plain exception
+    if not _lu_solve(system, right):
         return False, 0.0
     for r in range(m):
-        d[r] = solution[r]
-    return np.isfinite(solution).all(), solution[m]
+        d[r] = right[r]
+    return True, right[m]
+
+
+@nb.njit(cache=True, nogil=True)
+def _take_largest(values):
+    """The index of the largest value (the first of equals), which is then set to 0."""
+    best, j = values[0], 0
+    for t in range(1, len(values)):
+        if values[t] > best:
+            best, j = values[t], t
+    values[j] = 0.0
+    return j
+
+
+@nb.njit(cache=True, nogil=True)
+def _lu_solve(A, x):
+    """x <- A^-1 x by Gaussian elimination with partial pivoting (A overwritten); False
+    when a pivot is zero or the solution not finite.  Written out: numba's binding of
+    numpy.linalg.solve (with numpy.argsort) made the first compilation 12 s longer."""
+    size = len(x)
+    for k in range(size):
+        pivot = k
+        for r in range(k + 1, size):
+            if abs(A[r, k]) > abs(A[pivot, k]):
+                pivot = r
+        if A[pivot, k] == 0.0:
+            return False
+        if pivot != k:
+            for c in range(size):
+                A[k, c], A[pivot, c] = A[pivot, c], A[k, c]
+            x[k], x[pivot] = x[pivot], x[k]
+        for r in range(k + 1, size):
+            factor = A[r, k] / A[k, k]
+            if factor != 0.0:
+                for c in range(k + 1, size):
+                    A[r, c] -= factor * A[k, c]
+                x[r] -= factor * x[k]
+    for r in range(size - 1, -1, -1):
+        s = x[r]
+        for c in range(r + 1, size):
+            s -= A[r, c] * x[c]
+        x[r] = s / A[r, r]
+    for r in range(size):
+        if not np.isfinite(x[r]):
+            return False
+    return True
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
@@ -218,9 +262,9 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
                 return HAND_BACK, 0, counts[0], -1
             added = _add(L, m, members, t, _row(t, X, gamma, rows, slot_of, owner, stamp,
                                                 clock, partial, act, counts), dense, wide)
-            if added is None:
+            if added == NEITHER:
                 return HAND_BACK, 0, counts[0], -1
-            dense = added
+            dense = added == DENSE
             in_S[t] = True
             m += 1
     scale = 1.0
@@ -247,8 +291,9 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
                 change[r] = u[r] - b * v[r]                 # d, the change of beta_S
             # a factor of a nearly singular K_SS (a wide kernel) solves poorly: check rows
             # spread over S, and when one is off, refine on the whole residual
-            solved = _solved(X, gamma, F, members, m, change, b, RESIDUAL * largest, CHECKED,
-                             work, rows, slot_of, owner, stamp, clock, partial, act, counts)
+            solved = _solved(X, gamma, F, members, m, change, b, RESIDUAL * largest,
+                             min(CHECKED, m), work, rows, slot_of, owner, stamp, clock,
+                             partial, act, counts)
             for _ in range(REFINE if not solved else 0):
                 excess_d = excess
                 for r in range(m):
@@ -338,16 +383,15 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
             return DONE, steps, counts[0], -1 if dense else m
         if far >= 0 and count > far:
             return STOPPED, steps, counts[0], -1 if dense else m
-        order = np.argsort(-wrong, kind="mergesort")
         for k in range(min(release, count)):
-            j = order[k]
+            j = _take_largest(wrong)
             if m >= capacity:
                 return HAND_BACK, steps, counts[0], -1
             added = _add(L, m, members, j, _row(j, X, gamma, rows, slot_of, owner, stamp,
                                                 clock, partial, act, counts), dense, wide)
-            if added is None:
+            if added == NEITHER:
                 return HAND_BACK, steps, counts[0], -1
-            dense = added
+            dense = added == DENSE
             in_S[j] = True
             m += 1
     return STOPPED, steps, counts[0], -1 if dense else m

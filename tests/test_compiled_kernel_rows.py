@@ -65,3 +65,7 @@ def test_rbf_matrix_is_the_gaussian_written_out_and_says_nan_where_a_point_is_na
     P[1, 0] = np.nan
     K = rbf_matrix(P, X, 2.0)
     assert np.isnan(K[1]).all() and np.isfinite(K[[0, 2]]).all()
+    P[1, 0] = 1e200                     # its squared distances overflow: exp(-inf) = 0
+    K = rbf_matrix(P, X, 2.0)
+    assert (K[1] == 0.0).all()
+    np.testing.assert_allclose(K[[0, 2]], _gaussian(X[[0, 2]], X, 2.0), rtol=0, atol=1e-14)

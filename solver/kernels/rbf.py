@@ -7,23 +7,32 @@ import numpy as np
 from solver.kernels.base import Kernel
 from solver.kernels.rbf_core import rbf_block
 
+COORDINATE = 1e100      # |x| up to which -gamma |a - b|^2 stays finite (for gamma <= GAMMA)
+GAMMA = 1e9
+
+
+def _compiled_safe(points) -> bool:
+    return bool(np.isfinite(points).all() and np.abs(points).max(initial=0.0) <= COORDINATE)
+
 
 def rbf_matrix(A: np.ndarray, B: np.ndarray, gamma: float) -> np.ndarray:
     """K_ij = exp(-gamma |a_i - b_j|^2), compiled (``rbf_core``) for finite points.
 
-    A NaN or infinite coordinate goes through numpy instead, so that its row
-    says NaN: |a|^2 + |b|^2 - 2 a.b as one matrix product with inner dimension 4.
+    A NaN, infinite or huge coordinate goes through numpy instead, so that its row
+    says NaN or 0 as numpy's exp would (the compiled exp assumes finite arguments):
+    |a|^2 + |b|^2 - 2 a.b as one matrix product with inner dimension 4.
     """
     A = np.ascontiguousarray(A, dtype=float)
     B = np.ascontiguousarray(B, dtype=float)
-    if np.isfinite(A).all() and np.isfinite(B).all() and np.isfinite(gamma):
+    if _compiled_safe(A) and _compiled_safe(B) and 0.0 <= gamma <= GAMMA:
         return rbf_block(A, B, float(gamma))
-    A_ext = np.column_stack([A, (A * A).sum(1), np.ones(len(A))])
-    B_ext = np.column_stack([-2.0 * B, np.ones(len(B)), (B * B).sum(1)])
-    sq = A_ext @ B_ext.T
-    np.maximum(sq, 0.0, out=sq)           # rounding can dip just below zero
-    sq *= -gamma
-    return np.exp(sq, out=sq)
+    with np.errstate(over="ignore"):      # a huge point: its squares are inf, its k 0
+        A_ext = np.column_stack([A, (A * A).sum(1), np.ones(len(A))])
+        B_ext = np.column_stack([-2.0 * B, np.ones(len(B)), (B * B).sum(1)])
+        sq = A_ext @ B_ext.T
+        np.maximum(sq, 0.0, out=sq)           # rounding can dip just below zero
+        sq *= -gamma
+        return np.exp(sq, out=sq)
 
 
 def _gram(A, B, settings):

@@ -126,7 +126,11 @@ def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start, columns=None):
     # on many points the tight stages cost more than the decomposition's rounds from
     # where the first two left off (n = 10,000, gamma 10, C 1: 22 s against 6.6 s)
     stages = len(smo.VIOLATIONS) if len(y) <= PAIR_STEPS_ALL_STAGES else LARGE_STAGES
-    found = smo.solve_rbf(X, y, upper, gamma, GAP_TARGET, start, columns, stages=stages)
+    # ... and after the first, none when its free variables fit one sub-QP: from there
+    # the rounds end it sooner (n = 5,000, gamma 10, C 1: 1.5-1.9 s against 2.2-2.4 s)
+    hand_over = LARGEST_WORK if len(y) > PAIR_STEPS_ALL_STAGES else -1
+    found = smo.solve_rbf(X, y, upper, gamma, GAP_TARGET, start, columns, stages=stages,
+                          hand_over_free=hand_over)
     if not found.optimal:
         log.debug("pair steps stopped at gap %.1e: the decomposition goes on", found.gap)
         return None, found

@@ -29,8 +29,8 @@ import cvxopt
 import numpy as np
 from cvxopt import lapack
 
-from solver.qp import dual_certify as certify
 from solver.kernels.rbf_core import rbf_block
+from solver.qp import dual_certify as certify
 from solver.qp import face_core, face_kept, smo_core
 from solver.qp.dual_start import feasible
 from solver.qp.face_factor import FaceFactor
@@ -188,7 +188,7 @@ def rbf_columns(X, gamma) -> KernelColumns:
     columns = KernelColumns(np.array(X, dtype=float, order="C"),
                             lambda A, B: rbf_block(np.ascontiguousarray(A), B, gamma),
                             budget=CACHE_BYTES)
-    columns.rbf_gamma = float(gamma)      # the compiled face steps compute rows themselves
+    columns.rbf_gamma = gamma             # the compiled face steps compute rows themselves
     return columns
 
 

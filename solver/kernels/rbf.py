@@ -6,9 +6,11 @@ import numpy as np
 
 from solver.kernels.base import Kernel
 from solver.kernels.rbf_core import rbf_block
+from solver.limits import COORDINATE
+from solver.parameters import PARAMETERS
 
-COORDINATE = 1e100      # |x| up to which -gamma |a - b|^2 stays finite (for gamma <= GAMMA)
-GAMMA = 1e9
+# up to these, -gamma |a - b|^2 is finite, as the compiled exp assumes (fits never exceed them)
+GAMMA = PARAMETERS["gamma"].high
 
 
 def _compiled_safe(points) -> bool:

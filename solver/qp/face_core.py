@@ -294,6 +294,9 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
             solved = _solved(X, gamma, F, members, m, change, b, RESIDUAL * largest,
                              min(CHECKED, m), work, rows, slot_of, owner, stamp, clock,
                              partial, act, counts)
+            if not solved:              # the whole residual, which the refinement solves
+                _solved(X, gamma, F, members, m, change, b, RESIDUAL * largest, m, work,
+                        rows, slot_of, owner, stamp, clock, partial, act, counts)
             for _ in range(REFINE if not solved else 0):
                 excess_d = excess
                 for r in range(m):

@@ -57,6 +57,9 @@ def _frozen(array) -> np.ndarray:
     return array
 
 
+ZERO_W = 1e-9      # |sum alpha_i y_i x_i| below this share of sum alpha_i |x_i|: w is 0
+
+
 @dataclass(frozen=True, eq=False)
 class FitResult:
     """Everything a fit found.  Arrays are read-only and in input row order."""
@@ -139,6 +142,19 @@ class FitResult:
     def weight_norm(self) -> float:
         """|w| in original units (linear) or in the kernel's feature space."""
         return float(np.linalg.norm(self.w)) if self.w is not None else self.norm_w
+
+    @cached_property
+    def w_is_zero(self) -> bool:
+        """Whether w = sum_i alpha_i y_i x_i is 0 to rounding (linear kernel): its terms
+        cancel to within ZERO_W of their sizes, so f(x) = b at every point and no line
+        separates the classes at this C.  That is the exact optimum for classes no line
+        splits better than a constant (heavily overlapping ones at small C); the computed
+        |w| is then rounding, about 1e-14, and 2/|w| would read 1e14."""
+        if self.w is None or not self.alpha.any():
+            return False
+        scaled = (self.X - self.model.shift) / self.model.scale
+        sizes = float(np.dot(self.alpha, np.linalg.norm(scaled, axis=1)))
+        return float(np.linalg.norm(self.model.feature_weights)) <= ZERO_W * sizes
 
     @property
     def margin_width(self) -> float:

@@ -10,6 +10,9 @@ METHODS = {
     "zscore": "each feature shifted to mean 0 and divided by its standard deviation",
     "range": "each feature mapped onto [0, 1] by its smallest and largest value",
 }
+# ... and their names in the window and the report (the tokens above are the file's and
+# the command line's)
+TITLES = {"none": "none", "zscore": "z-score", "range": "range [0, 1]"}
 
 
 def scaling_parameters(X: np.ndarray, method: str) -> tuple[np.ndarray, np.ndarray]:

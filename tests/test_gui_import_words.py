@@ -49,3 +49,18 @@ def test_every_control_of_the_import_dialog_has_a_tooltip(qtbot, tmp_path, tempo
     for widget in (dialog.feature_x, dialog.feature_y, dialog.label, dialog.positive,
                    dialog.drop):
         assert widget.toolTip()
+
+
+def test_every_column_of_the_preview_is_as_wide_as_its_header(qtbot, tmp_path,
+                                                              temporary_settings):
+    path = tmp_path / "seals.csv"
+    path.write_text("seal temperature [C],dwell time [s],seal verdict after peel test\n"
+                    "150.5,1.2,held\n162.0,0.8,leaked\n", encoding="utf-8")
+    dialog = _dialog(qtbot, path)
+    dialog.show()
+    qtbot.waitExposed(dialog)
+    header = dialog.table.horizontalHeader()
+    metrics = header.fontMetrics()
+    for column, title in enumerate(("seal temperature [C]", "dwell time [s]",
+                                    "seal verdict after peel test")):
+        assert header.sectionSize(column) >= metrics.horizontalAdvance(title)

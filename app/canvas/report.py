@@ -20,6 +20,7 @@ from solver.study import points_fingerprint
 from solver import InputError
 from solver.study import heldout_sentence, summary
 from solver import CAUTIONS, STATUS_TEXT, STATUSES
+from solver import scaling
 
 LAYOUT_WIDTH = 1000          # logical width the page is laid out at, in pixels
 PNG_SIZE = (1240, 1754)      # A4 portrait at 150 dpi
@@ -179,7 +180,10 @@ def _data_line(dataset, result, edited=False) -> str:
 
 def _single_fit_line(result) -> str:
     counts = ", ".join(f"{result.count(s)} {STATUS_TEXT[s]}" for s in STATUSES)
-    return (f"Margin width {result.margin_width:.4g}, b = {result.b:.4g}, "
+    margin = ("No margin: w = 0 to rounding, so no line separates these classes at this C "
+              "and f(x) = b at every point" if result.w_is_zero
+              else f"Margin width {result.margin_width:.4g}")
+    return (f"{margin}, b = {result.b:.4g}, "
             f"{result.n_support} support vectors ({counts}), training error "
             f"{result.training_error:.1%}.")
 
@@ -199,7 +203,8 @@ def _sweep_line(sweep) -> str:
 
 def _config_line(config) -> str:
     c_text = "hard margin" if config.hard_margin else f"C = {config.C:g}"
-    text = f"{config.kernel_spec.title} kernel, {c_text}, scaling {config.scaling}"
+    text = (f"{config.kernel_spec.title} kernel, {c_text}, "
+            f"scaling {scaling.TITLES.get(config.scaling, config.scaling)}")
     for name in config.kernel_spec.parameters:
         text += f", {name} = {getattr(config, name):g}"
     if (config.weight_positive, config.weight_negative) != (1.0, 1.0):

@@ -85,6 +85,9 @@ class ImportDialog(QDialog):
         for row in preview.rows[:PREVIEW_ROWS]:
             model.appendRow([QStandardItem("" if v is None else str(v)) for v in row])
         self.table.setModel(model)
+        # each column as wide as its header and first rows: a long header ("seal
+        # temperature [C]") was cut on both sides of a centred title
+        self.table.resizeColumnsToContents()
         numeric = [str(c) for c, ok in zip(preview.columns, preview.numeric) if ok]
         columns = [str(c) for c in preview.columns]
         self.feature_x.addItems(columns)

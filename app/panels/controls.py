@@ -94,10 +94,11 @@ class Controls(QWidget):
         self.weight_negative = _parameter_box("weight_negative")
         self.scaling = QComboBox()
         for method, meaning in scaling.METHODS.items():
-            self.scaling.addItem(method, method)
+            self.scaling.addItem(scaling.TITLES[method], method)
             self.scaling.setItemData(self.scaling.count() - 1, meaning, Qt.ToolTipRole)
         self.scaling.setToolTip("feature scaling before the fit: "
-                                + "; ".join(f"{k}: {v}" for k, v in scaling.METHODS.items())
+                                + "; ".join(f"{scaling.TITLES[k]}: {v}"
+                                            for k, v in scaling.METHODS.items())
                                 + ". w and b are always shown in the original units")
 
         self.form = QFormLayout()

@@ -85,11 +85,16 @@ class Summary(QWidget):
             return
         set_ = lambda key, text: self.values[key].setText(text)  # noqa: E731
         unit = length_suffix(result, doc.units)
-        if result.w is not None:
+        if result.w_is_zero:
+            set_("w", "0 to rounding: no line separates these classes at this C, "
+                      "so f(x) = b at every point")
+            set_("margin", "none (w = 0)")
+        elif result.w is not None:
             set_("w", f"({number(result.w[0])}, {number(result.w[1])})")
         else:
             set_("w", "\u2014 (kernel fit: no w in the plane)")
-        set_("margin", number(result.margin_width) + unit)
+        if not result.w_is_zero:
+            set_("margin", number(result.margin_width) + unit)
         set_("units", units_sentence(result, doc.units, doc.feature_names))
         set_("b", number(result.b))
         set_("support", str(result.n_support))

@@ -50,6 +50,7 @@ class StatusReadouts:
         canvas.viewport().installEventFilter(_LeaveWatch(self, canvas.viewport()))
         document.busy_changed.connect(self._busy)
         self._failure = None
+        self._had_pin = False     # a load notifies every change: "pin cleared" only after one
         document.changed.connect(self._document_changed)
         self.refresh()
 
@@ -156,8 +157,11 @@ class StatusReadouts:
         doc, bar = self.document, self.window.statusBar()
         pinned = doc.pinned
         if pinned is None:
-            bar.showMessage("pin cleared: the ghost boundary is gone", PIN_MESSAGE_MS)
+            if self._had_pin:
+                bar.showMessage("pin cleared: the ghost boundary is gone", PIN_MESSAGE_MS)
+            self._had_pin = False
             return
+        self._had_pin = True
         config = pinned.config
         C = "hard margin" if config.hard_margin else f"C = {_g(config.C)}"
         bar.showMessage(f"pinned the current fit ({KERNEL_WORDS.get(config.kernel)}, {C}): "

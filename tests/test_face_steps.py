@@ -84,7 +84,7 @@ def test_compiled_and_python_face_steps_reach_the_reference_optimum(monkeypatch)
     base = FitConfig(C=1.0, kernel="rbf", gamma=2.0)
     first = fit(X, y, base)
     compiled = fit(X, y, base.with_changes(C=3.0), warm_start=first)
-    monkeypatch.setattr(face_kept, "available", lambda columns, n: False)
+    monkeypatch.setattr(face_kept, "available", lambda *args: False)
     kernel_cache.RECENT.clear()
     python = fit(X, y, base.with_changes(C=3.0), warm_start=first)
     _reference_check(X, y, compiled, 3.0, 2.0)
@@ -105,14 +105,32 @@ def test_a_wide_kernels_gamma_step_solves_densely_where_the_factor_fails(monkeyp
     _reference_check(X, y, step, 100.0, 0.55)
 
 
-def test_no_factor_is_kept_for_a_fit_too_large_for_a_row_per_point(monkeypatch):
-    monkeypatch.setattr(smo, "CACHE_BYTES", 8 * 300 * 100)   # 100 rows of 300 points
+def test_no_factor_is_kept_when_the_cache_cannot_hold_the_free_sets_rows(monkeypatch):
+    # 100 rows of 300 points: room for 100 - SPARE = 36 members, fewer than are free
+    monkeypatch.setattr(smo, "CACHE_BYTES", 8 * 300 * 100)
     kernel_cache.RECENT.clear()                # not the last test's cache of these points
     X, y = _blobs(300)
     calls = _spy(monkeypatch)
     result = fit(X, y, FitConfig(C=1.0, kernel="rbf", gamma=2.0))
     assert calls == []                                         # the Python steps only
     _reference_check(X, y, result, 1.0, 2.0)
+
+
+def test_a_cache_smaller_than_the_points_serves_when_it_holds_the_free_sets_rows(monkeypatch):
+    # 240 rows of 300 points: no row for every point, but room for 240 - SPARE = 176
+    # members, more than the free set at gamma 2, C 1 (a C step of n = 10,000 points,
+    # where 2,600 rows of 10,000 fit, scaled down)
+    monkeypatch.setattr(smo, "CACHE_BYTES", 8 * 300 * 240)
+    kernel_cache.RECENT.clear()
+    X, y = _blobs(300)
+    base = FitConfig(C=1.0, kernel="rbf", gamma=2.0)
+    first = fit(X, y, base)
+    free = np.count_nonzero((first.alpha > 1e-12) & (first.alpha < 1.0 - 1e-12))
+    assert 0 < free <= 240 - face_kept.SPARE
+    calls = _spy(monkeypatch)
+    step = fit(X, y, base.with_changes(C=1.2), warm_start=first)
+    assert calls and calls[-1][0] == face_core.DONE
+    _reference_check(X, y, step, 1.2, 2.0)
 
 
 def test_a_finish_that_leaves_a_worse_point_is_undone(monkeypatch):

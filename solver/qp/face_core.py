@@ -17,9 +17,9 @@ spread over S and, when one is off, refined on the whole residual; when that
 fails, or a released variable's diagonal vanishes, the factor is given up
 and each later step solves the bordered system [K_SS 1; 1' 0] afresh by LU
 (up to ``wide`` free variables, as the Python steps' Bunch-Kaufman fallback).
-Past that the steps hand back, and the Python steps go on from the same
-alpha and F.  Kernel rows are read from (and, when missing, computed into)
-the arrays of a ``KernelColumns`` that holds a row for every point.
+Past that the steps hand back, and the Python steps go on from the same alpha
+and F.  Kernel rows are read from (and, when missing, computed into) a
+``KernelColumns`` with a row per member of S and some to spare (``face_kept.room``).
 """
 
 from __future__ import annotations

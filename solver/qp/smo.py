@@ -112,7 +112,8 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
     best = None
     if alpha_start is not None:
         # a warm start (C or gamma moved a little) is often a few face steps from the optimum
-        compiled = face_kept.available(columns, n)
+        compiled = face_kept.available(
+            columns, n, np.count_nonzero((alpha > 0) & (alpha < upper)), FACE_LIMIT)
         if _finish(columns, y, upper, alpha, F, COMPILED_WARM_STEPS if compiled else WARM_STEPS,
                    tally, patient=True, far=None if compiled else FAR):
             F = _fresh_F(columns, y, alpha)
@@ -234,13 +235,16 @@ def _face_steps(columns, y, upper, alpha, F, limit, tally, patient=False, far=No
     can only go down) are released into S, worst first.  Returns True when no
     variable is left on the wrong side: alpha is the optimum of the whole problem.
 
-    The same steps run compiled (``face_core``) when the cache holds a row for every
-    point of an RBF kernel; these steps here go on where those hand back.
+    The same steps run compiled (``face_core``) for an RBF kernel whose cache holds the
+    rows of the free set (``face_kept.room``); these steps here go on where those hand
+    back.
     """
-    if face_kept.available(columns, len(y)):
+    room = face_kept.room(columns, len(y), FACE_LIMIT)
+    if face_kept.available(columns, len(y), np.count_nonzero((alpha > 0) & (alpha < upper)),
+                           FACE_LIMIT):
         status, steps = face_kept.face_steps(
             columns, y, upper, alpha, F, limit, patient, far,
-            (RELEASE, WIDE_FACE, NEAR_BOUND, SHORT, SHORT_STEPS), min(len(y), FACE_LIMIT))
+            (RELEASE, WIDE_FACE, NEAR_BOUND, SHORT, SHORT_STEPS), room)
         tally[0] += steps
         if status != face_core.HAND_BACK:
             return status == face_core.DONE

@@ -44,7 +44,8 @@ def run(args) -> int:
         print(f"{args.experiment}: DRIFT — the stored configuration no longer solves: {exc}")
         return 1
     fresh = result.to_dict()
-    comparisons = agreement(stored, fresh, np.asarray(result.penalties))
+    comparisons = agreement(stored, fresh, np.asarray(result.penalties),
+                            float(np.abs(dataset.X).max(initial=0.0)))
     if experiment.heldout is not None:       # stored held-out points: solver.study.heldout
         points = heldout_from_section(experiment.heldout, dataset.label_mapping)
         comparisons += heldout_agreement(experiment.heldout, points, dataset.label_mapping,

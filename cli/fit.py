@@ -58,7 +58,10 @@ def summary_text(result, dataset) -> str:
     lines = [f"{dataset.source}: {len(result.y)} points, features "
              f"{dataset.feature_names[0]}, {dataset.feature_names[1]}; "
              f"{config.kernel} kernel, {c_text}, scaling {config.scaling}"]
-    if result.w is not None:
+    if result.w_is_zero:
+        lines.append(f"  w = 0 to rounding: no line separates these classes at this C, so "
+                     f"f(x) = b at every point   b = {result.b:.6g}")
+    elif result.w is not None:
         lines.append(f"  w = ({result.w[0]:.6g}, {result.w[1]:.6g})   b = {result.b:.6g}   "
                      f"margin width 2/|w| = {result.margin_width:.6g}")
     else:

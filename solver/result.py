@@ -107,8 +107,10 @@ class FitResult:
 
     @cached_property
     def distance(self) -> np.ndarray:
-        """Signed distance y_i f(x_i) / |w| to the boundary (original units for linear)."""
-        return _frozen(self.functional_margin / self.weight_norm)
+        """Signed distance y_i f(x_i) / |w| to the boundary (original units for linear);
+        infinite for w = 0 exactly, where there is no boundary."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return _frozen(self.functional_margin / self.weight_norm)
 
     @cached_property
     def projection(self) -> np.ndarray | None:
@@ -158,8 +160,9 @@ class FitResult:
 
     @property
     def margin_width(self) -> float:
-        """2 / |w|: width of the band between f = -1 and f = +1."""
-        return 2.0 / self.weight_norm
+        """2 / |w|: width of the band between f = -1 and f = +1 (infinite for w = 0)."""
+        norm = self.weight_norm
+        return 2.0 / norm if norm > 0 else float("inf")
 
     @property
     def half_norm_w2(self) -> float:

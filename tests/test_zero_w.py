@@ -36,3 +36,40 @@ def test_the_summary_says_no_line_separates_instead_of_a_huge_margin(window, qtb
     assert window.document.result.w_is_zero
     assert summary.text("margin") == "none (w = 0)"
     assert summary.text("w").startswith("0 to rounding: no line separates these classes")
+
+
+def _cross_file(tmp_path):
+    path = tmp_path / "cross.csv"
+    path.write_text("along [mm],across [mm],result\n" + "".join(
+        f"{a:g},{b:g},{'held' if s > 0 else 'leaked'}\n" for (a, b), s in zip(CROSS_X, CROSS_Y)))
+    return path
+
+
+def test_every_command_takes_a_fit_with_w_exactly_zero(tmp_path, capsys):
+    # the cross gives w = 0 exactly (above): 2/|w| and y f / |w| divide by zero
+    from cli.main import main
+    path, saved = _cross_file(tmp_path), tmp_path / "cross.json"
+    assert main(["fit", str(path), "--positive", "held", "--save", str(saved)]) == 0
+    out = capsys.readouterr().out
+    assert "w = 0 to rounding: no line separates these classes at this C" in out
+    assert "margin width" not in out
+    assert main(["check", str(saved)]) == 0                   # the file is consistent
+    assert "agrees with the stored results" in capsys.readouterr().out
+    table = tmp_path / "points.csv"
+    assert main(["export", str(saved), "--points", str(table)]) == 0
+    assert len(table.read_text().splitlines()) == 5
+
+
+def test_a_w_of_rounding_agrees_with_a_w_of_other_rounding():
+    # w = 0 to rounding is 1e-14 of either sign: 2/|w| and max|w| are noise, and a w
+    # that moves no decision value f = w.x + b by more than their tolerance agrees
+    from solver.study.agreement import agreement
+    result = fit(CROSS_X * 100.0, CROSS_Y, FitConfig(C=1.0))
+    stored, fresh = result.to_dict(), result.to_dict()
+    stored["w"], fresh["w"] = [1e-14, -2e-17], [-3e-14, 1e-16]
+    stored["margin_width"], fresh["margin_width"] = 2e14, 6.7e13
+    rows = {row.quantity: row for row in agreement(stored, fresh, result.penalties, 100.0)}
+    assert rows["w"].agrees and "margin width" not in rows
+    stored["w"] = [1e-7, 0.0]           # 1e-7 * 100 moves f by 1e-5: a real difference
+    rows = {row.quantity: row for row in agreement(stored, fresh, result.penalties, 100.0)}
+    assert not rows["w"].agrees

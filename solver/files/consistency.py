@@ -109,9 +109,11 @@ def _per_point_problems(results, n) -> list[str]:
 
 def _norm_problems(results) -> list[str]:
     norm, width = results["weight_norm"], results["margin_width"]
+    if norm == 0 and width is None:
+        return []          # w = 0 exactly (no line separates the classes): no margin
     if not (math.isfinite(norm) and norm > 0):
         return [f"/results/weight_norm: expected a positive number (distances and the margin "
-                f"width 2/|w| divide by it); got {short(norm)}"]
+                f"width 2/|w| divide by it), or 0 with margin_width null; got {short(norm)}"]
     problems = []
     if width is None or not _close(width, 2.0 / norm):
         problems.append(f"/results/margin_width: expected 2 / weight_norm = {2.0 / norm:.10g}; "

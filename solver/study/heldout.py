@@ -138,9 +138,11 @@ def score(fitted, points, label_mapping: dict) -> Scores:
     by_sign = _labels_by_sign(label_mapping)
     decision = classifier.decision_function(points) if len(points) else np.zeros(0)
     signs = np.where(decision >= 0, 1, -1)
+    with np.errstate(divide="ignore", invalid="ignore"):     # w = 0: no boundary
+        distance = np.abs(decision) / classifier.weight_norm
     return Scores(decision=decision, signs=signs,
                   labels=tuple(by_sign[int(s)] for s in signs),
-                  distance=np.abs(decision) / classifier.weight_norm,
+                  distance=distance,
                   in_band=np.abs(decision) < 1.0,
                   distance_space=DATA_UNITS if classifier.kernel == "linear"
                   else FEATURE_SPACE)

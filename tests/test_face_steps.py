@@ -165,3 +165,23 @@ def test_many_points_hand_over_to_the_rounds_once_their_free_set_fits_a_sub_qp(m
     (count, free), = stages
     assert count == 1 and free <= 1_000      # one stage, then the decomposition's rounds
     _reference_check(X, y, result, 1.0, 10.0)
+
+
+def test_a_stage_skips_its_finish_when_many_are_on_the_wrong_side(monkeypatch):
+    # WIDE_FACE 0 and FAR -1: every free set is "large" and every count "many", so the
+    # stage does not finish; the decomposition then ends the fit at the reference's optimum
+    X, y = _blobs(300)
+    y = y.astype(float)
+    calls = []
+    finish = smo._finish
+    monkeypatch.setattr(smo, "_finish", lambda *a, **k: calls.append(1) or finish(*a, **k))
+    smo.solve_rbf(X, y, np.ones(300), 10.0, 5e-9, stages=1)
+    assert calls == [1]                           # by default the stage's finish runs
+    monkeypatch.setattr(smo, "WIDE_FACE", 0)
+    monkeypatch.setattr(smo, "FAR", -1)
+    calls.clear()
+    found = smo.solve_rbf(X, y, np.ones(300), 10.0, 5e-9, stages=1)
+    assert calls == [] and not found.optimal and found.face_steps == 0
+    kernel_cache.RECENT.clear()
+    result = fit(X, y, FitConfig(C=1.0, kernel="rbf", gamma=10.0))
+    _reference_check(X, y, result, 1.0, 10.0)

@@ -14,7 +14,9 @@ The finish is a primal active-set method on these systems (``_face_steps``):
 when the corrected alphas leave the box the step stops at the first bound and
 drops what reached one; when they stay inside, bound variables on the wrong
 side of b are released, worst first.  Pair steps run in stages of tighter
-violation (VIOLATIONS), each followed by a finish.  Every candidate is judged
+violation (VIOLATIONS), each followed by a finish (unless more than FAR bound
+variables are on the wrong side of a large free set's b: then it rarely ends
+the fit, and its first step alone is a Cholesky factor of K_SS).  Every candidate is judged
 on the whole problem, on F computed afresh from kernel values, by the
 relative duality gap of ``dual_certify`` and by y'a = 0; the result says
 ``optimal`` only when both pass, and otherwise carries its best alpha for the
@@ -60,6 +62,12 @@ PATIENT_STEPS = 30               # is patient, short steps do not end it, for th
 PATIENT_FREE = 1_000             # steps, when at most this many are free (n = 1,000 moons,
                                  # gamma 10, C 1: from 1e-4 six patient steps end the fit,
                                  # where the impatient finish stopped and a third stage ran)
+COMPILED_PATIENT_STEPS = 100     # ... and for the decomposition's exact solve, compiled,
+COMPILED_PATIENT_FREE = 1_500    # on at most this many free (n = 5,000 moons, gamma 50,
+                                 # C 1: at round 6 on 1,397 free, 30 steps fell short and 6
+                                 # more rounds ran, 100 ended it there; n = 10,000 blobs,
+                                 # gamma 50, C 1: on 2,242 free 100 steps fell short too,
+                                 # at 50 ms each: measured)
 WARM_STEPS = 30                  # face steps straight from a warm start, at most ...
 FAR = 64                         # ... ended early when a release finds more than this many
                                  # on the wrong side (gamma moved: pair steps do better)
@@ -127,12 +135,14 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
         patient = (stage >= PATIENT_FROM or alpha_start is not None) and free <= PATIENT_FREE
         paired = alpha.copy()
-        _finish(columns, y, upper, alpha, F,
-                PATIENT_STEPS if patient else FACE_STEPS if free <= WIDE_FACE else FEW_STEPS,
-                tally, patient)
+        finished = free <= WIDE_FACE or _wrong_side(alpha, F, y, upper) <= FAR
+        if finished:
+            _finish(columns, y, upper, alpha, F,
+                    PATIENT_STEPS if patient else FACE_STEPS if free <= WIDE_FACE else FEW_STEPS,
+                    tally, patient)
         F = _fresh_F(columns, y, alpha)               # certify on F computed afresh
         b, gap = _certificate(alpha, F, y, upper)
-        if gap > gap_target:
+        if gap > gap_target and finished:
             # a finish that stopped short can leave a point worse than the pair steps'
             # (n = 5,000, gamma 10, C 1: gap 7e-5 before it, 2e-2 after): keep the better
             F_paired = _fresh_F(columns, y, paired)
@@ -175,7 +185,11 @@ def finish_on_face(columns, y, upper, alpha, gradient, gap_target):
     kernel."""
     alpha = np.array(alpha, dtype=float)
     F = -y * gradient
-    _finish(columns, y, upper, alpha, F, PATIENT_STEPS, [0], patient=True)
+    free = np.count_nonzero((alpha > 0) & (alpha < upper))
+    compiled = face_kept.available(columns, len(y), free, FACE_LIMIT)
+    long = compiled and free <= COMPILED_PATIENT_FREE
+    _finish(columns, y, upper, alpha, F, COMPILED_PATIENT_STEPS if long else PATIENT_STEPS,
+            [0], patient=True)
     F = _fresh_F(columns, y, alpha)
     b, gap = _certificate(alpha, F, y, upper)
     if gap <= gap_target and _balanced(alpha, y):
@@ -199,6 +213,21 @@ def _fresh_F(columns, y, alpha):
     if not len(support):
         return y.copy()
     return y - columns.product(support, alpha[support] * y[support])
+
+
+def _wrong_side(alpha, F, y, upper) -> int:
+    """How many bound variables are on the wrong side of b: the face steps release 16 a
+    step, so with more than FAR of them a finish on a large free set (its first step a
+    Cholesky factor of K_SS) rarely ends the fit.  (n = 5,000, every stage finish of
+    the bench's grid: those that ended it had at most 26; those above 64 failed, after
+    0.06-0.66 s; at n = 1,000 none had more than 8.)"""
+    b = certify.intercept(F, y, upper, alpha)
+    free = (alpha > 0) & (alpha < upper)
+    can_up = np.where(y > 0, alpha < upper, alpha > 0)
+    can_down = np.where(y > 0, alpha > 0, alpha < upper)
+    wrong = np.where(can_up & ~can_down, F - b, np.where(can_down & ~can_up, b - F, 0.0))
+    scale = 1e-12 * max(1.0, float(np.abs(F).max()))
+    return int(np.count_nonzero(~free & (wrong > scale)))
 
 
 def _balanced(alpha, y) -> bool:

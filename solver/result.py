@@ -108,15 +108,19 @@ class FitResult:
     @cached_property
     def distance(self) -> np.ndarray:
         """Signed distance y_i f(x_i) / |w| to the boundary (original units for linear);
-        infinite for w = 0 exactly, where there is no boundary."""
-        with np.errstate(divide="ignore", invalid="ignore"):
-            return _frozen(self.functional_margin / self.weight_norm)
+        NaN when w is 0 (``w_is_zero``): there is no boundary to be at a distance from."""
+        if self.w_is_zero:
+            return _frozen(np.full(len(self.y), np.nan))
+        return _frozen(self.functional_margin / self.weight_norm)
 
     @cached_property
     def projection(self) -> np.ndarray | None:
-        """p_i = w.x_i / |w|, the point's projection onto the direction of w (linear)."""
+        """p_i = w.x_i / |w|, the point's projection onto the direction of w (linear;
+        NaN when w is 0, which has no direction)."""
         if self.w is None:
             return None
+        if self.w_is_zero:
+            return _frozen(np.full(len(self.y), np.nan))
         return _frozen(self.X @ self.w / self.weight_norm)
 
     # -- global ------------------------------------------------------------

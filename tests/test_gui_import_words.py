@@ -64,3 +64,16 @@ def test_every_column_of_the_preview_is_as_wide_as_its_header(qtbot, tmp_path,
     for column, title in enumerate(("seal temperature [C]", "dwell time [s]",
                                     "seal verdict after peel test")):
         assert header.sectionSize(column) >= metrics.horizontalAdvance(title)
+
+
+def test_the_positive_class_choices_cover_labels_past_the_first_rows(qtbot, tmp_path,
+                                                                     temporary_settings):
+    # sorted by label: the second label first appears on row 301, past the preview
+    path = _write(tmp_path / "sorted.csv", [(1.0 + i / 300, 2.0, "ok") for i in range(300)]
+                  + [(3.0 + i / 20, 1.0, "scrap") for i in range(20)])
+    dialog = _dialog(qtbot, path)
+    choices = [dialog.positive.itemText(i) for i in range(dialog.positive.count())]
+    assert choices[1:] == ["ok", "scrap"]
+    dialog.positive.setCurrentIndex(2)
+    assert dialog.ok_button.isEnabled()
+    assert dialog.dataset.mapping_text().startswith("'scrap' -> +1")

@@ -160,7 +160,7 @@ def test_check_json_reports_an_infinite_difference_as_null_and_says_why(capsys, 
                                                                           monkeypatch):
     import cli.check
     from solver.study.agreement import Agreement
-    monkeypatch.setattr(cli.check, "agreement", lambda stored, fresh, penalties: [
+    monkeypatch.setattr(cli.check, "agreement", lambda stored, fresh, *args: [
         Agreement("w", float("inf"), 0.0, "present in only one of them")])
     from cli.main import main
     assert main(["check", str(linear), "--json"]) == 1

@@ -36,6 +36,15 @@ def test_the_summary_says_no_line_separates_instead_of_a_huge_margin(window, qtb
     assert window.document.result.w_is_zero
     assert summary.text("margin") == "none (w = 0)"
     assert summary.text("w").startswith("0 to rounding: no line separates these classes")
+    # and the canvas draws no boundary, margin, slack or w of rounding's direction
+    items = window.canvas.scene_items
+    for line in (items.boundary, items.band, items.slack, items.weight):
+        xs, _ = line.getData()
+        assert xs is None or len(xs) == 0
+    assert not items.arrow.isVisible()
+    table = window.points_table.model
+    table.flush()                                       # the table refreshes on a timer
+    assert table.data(table.index(0, 6)) == "\u2014"          # no distance to no boundary
 
 
 def _cross_file(tmp_path):

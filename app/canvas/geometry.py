@@ -231,6 +231,11 @@ def fit_geometry(result, rect, grid_values=None, project: bool = True) -> FitGeo
     lattice (``grid_values`` = (xs, ys, values) when the caller has it),
     with ``project`` moving every vertex onto its level set by Newton steps.
     """
+    if result.w is not None and result.w_is_zero:
+        # w = 0: f = b everywhere, no level set to draw, no margin for slack to reach
+        return FitGeometry(boundary=[], band_positive=[], band_negative=[],
+                           slack_points=np.zeros(0, dtype=int), slack_from=np.zeros((0, 2)),
+                           slack_to=np.zeros((0, 2)), weight=None)
     if result.w is not None:
         lines = {}
         for level in (0.0, 1.0, -1.0):
@@ -263,7 +268,7 @@ def lattice_values(f, rect, size: int = KERNEL_GRID):
 def weight_arrow(result):
     """(foot, tip) of w drawn from f = 0 to f = +1 (length 1/|w|, half the margin
     width), based at the boundary point nearest the points' mean; None without w."""
-    if result.w is None or not np.any(result.w):
+    if result.w is None or result.w_is_zero:
         return None
     anchor = result.X.mean(axis=0) if len(result.X) else np.zeros(2)
     foot = foot_on_boundary(result.w, result.b, anchor)

@@ -108,13 +108,12 @@ class ImportDialog(QDialog):
     def _fill_positive(self):
         if self.preview is None:
             return
-        column = list(self.preview.columns).index(self.label.currentText()) \
-            if self.label.currentText() in [str(c) for c in self.preview.columns] else -1
-        values = []
-        for row in self.preview.rows:
-            value = row[column] if column >= 0 else None
-            if value is not None and str(value) not in values and str(value) != "nan":
-                values.append(str(value))
+        from solver.files import column_values
+        try:         # every label in the file, not only the preview's first rows
+            values = [v for v in column_values(self.path, self.label.currentText())
+                      if v != "nan"]
+        except (SlacklineError, ValueError):
+            values = []
         self.positive.blockSignals(True)
         self.positive.clear()
         self.positive.addItem("(automatic for labels 0/1 or \u22121/+1)", None)

@@ -28,7 +28,7 @@ TITLES = {"index": "point", "coordinates": "coordinates", "label": "label",
 
 
 def _g(value) -> str:
-    return f"{value:.6g}"
+    return f"{value:.6g}" if value == value else "\u2014"      # NaN: w = 0, no boundary
 
 
 class Inspector(QWidget):
@@ -81,7 +81,8 @@ class Inspector(QWidget):
         self.values["decision"].setText(_g(result.decision[i]))
         self.values["margin"].setText(_g(result.functional_margin[i]))
         unit = length_suffix(result, doc.units)
-        self.values["distance"].setText(_g(result.distance[i]) + unit)
+        distance = result.distance[i]
+        self.values["distance"].setText(_g(distance) + (unit if distance == distance else ""))
         if result.projection is not None:
             self.values["projection"].setText(_g(result.projection[i]))
         self.values["alpha"].setText(f"{_g(result.alpha[i])}  (C\u1d62 = {_g(result.penalties[i])})")

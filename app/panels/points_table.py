@@ -177,6 +177,8 @@ class PointsModel(QAbstractTableModel):
                 return ""
             if column == 9:
                 return SHORT_STATUS[value]
+            if isinstance(value, float) and value != value:
+                return "\u2014"              # NaN: no distance without a boundary (w = 0)
             digits = {1: 6, 2: 6, 7: 3, 8: 3}.get(column, 4)   # alpha, slack: room for e-12
             return f"{value:.{digits}g}" if isinstance(value, float) else str(value)
         if role == Qt.TextAlignmentRole and index.column() not in (3, 9):

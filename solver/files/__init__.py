@@ -16,7 +16,7 @@ from solver.files.heldout_points import HeldOutPoints, heldout_from_section, hel
 from solver.files.new_rows import NewRows, read_new_rows
 from solver.files.scored_table import scored_csv, scored_table, write_scored_csv
 from solver.files.tables import (EXCEL_SUFFIXES, TAB_SUFFIXES, TABLE_FILTER, TABLE_SUFFIXES,
-                                 TablePreview, preview_table, read_table)
+                                 TablePreview, column_values, preview_table, read_table)
 
 __all__ = [
     "bundled", "resource", "resource_json", "atomic_open", "atomic_write_text", "Dataset", "load_table", "sign_mapping",
@@ -26,5 +26,6 @@ __all__ = [
     "write_points_csv", "neutralise", "HeldOutPoints", "heldout_from_section",
     "heldout_section", "NewRows", "read_new_rows", "scored_csv", "scored_table",
     "write_scored_csv",
-    "EXCEL_SUFFIXES", "TAB_SUFFIXES", "TABLE_FILTER", "TABLE_SUFFIXES", "TablePreview", "preview_table", "read_table",
+    "EXCEL_SUFFIXES", "TAB_SUFFIXES", "TABLE_FILTER", "TABLE_SUFFIXES", "TablePreview", "column_values", "preview_table",
+    "read_table",
 ]

@@ -9,7 +9,8 @@ it was sealed), and ``check`` and ``export`` read the same problems, so
     labels       each point's label is one of the two in /data/label_mapping
     lengths      alpha, slack, decision, status: one entry per point
     support      indices in range, none listed twice, alpha >= 0
-    norms        weight_norm > 0 and finite (distances divide by it);
+    norms        weight_norm > 0 and finite (distances divide by it), or 0 with
+                 margin_width null for a linear fit whose w is 0;
                  margin_width = 2 / weight_norm; linear: w = feature_weights / scale
                  and |w| = weight_norm
     model        kernel and its parameters as in /config; scale > 0;
@@ -109,16 +110,18 @@ def _per_point_problems(results, n) -> list[str]:
 
 def _norm_problems(results) -> list[str]:
     norm, width = results["weight_norm"], results["margin_width"]
-    if norm == 0 and width is None:
+    model, w = results["model"], results["w"]
+    if norm == 0 and width is None and model["kernel"] == "linear" and w is not None \
+            and not any(w) and not any(model.get("feature_weights") or [1.0]):
         return []          # w = 0 exactly (no line separates the classes): no margin
     if not (math.isfinite(norm) and norm > 0):
         return [f"/results/weight_norm: expected a positive number (distances and the margin "
-                f"width 2/|w| divide by it), or 0 with margin_width null; got {short(norm)}"]
+                f"width 2/|w| divide by it), or 0 for a linear fit whose w is 0; "
+                f"got {short(norm)}"]
     problems = []
     if width is None or not _close(width, 2.0 / norm):
         problems.append(f"/results/margin_width: expected 2 / weight_norm = {2.0 / norm:.10g}; "
                         f"got {short(width)}")
-    model, w = results["model"], results["w"]
     if model["kernel"] == "linear" and w is not None and _lengths_ok(model, 2) \
             and all(math.isfinite(v) and v > 0 for v in model["scale"]):
         from_model = [fw / s for fw, s in zip(model["feature_weights"], model["scale"])]

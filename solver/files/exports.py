@@ -36,8 +36,10 @@ def points_table(dataset: Dataset, result) -> tuple[list[str], list[list]]:
     n = len(dataset)
     decision = np.asarray(figures["decision"], dtype=float)
     functional = dataset.y * decision                        # y_i f(x_i)
-    with np.errstate(divide="ignore", invalid="ignore"):     # w = 0: no boundary
+    if figures["weight_norm"] > 0:
         distance = functional / figures["weight_norm"]       # y_i f(x_i) / |w|
+    else:                              # w = 0: no boundary, no distance (nan)
+        distance = np.full(n, np.nan)
     names = [_with_unit(name, unit) for name, unit in zip(dataset.feature_names, dataset.units)]
     header = [c.format(*names) for c in POINT_COLUMNS]
     lines = list(dataset.rows) if len(dataset.rows) == n else [""] * n

@@ -132,6 +132,23 @@ def preview_table(path, rows: int = 20) -> TablePreview:
                         delimiter=table.delimiter)
 
 
+def column_values(path, column, limit: int = 50) -> tuple[str, ...]:
+    """The distinct non-empty values of ``column`` over the whole file, in order of first
+    appearance, at most ``limit`` (the import dialog's positive-class choices: a file
+    sorted by label shows one label only in its first rows)."""
+    frame = read_table(path).frame
+    if column not in frame.columns:
+        return ()
+    values = []
+    for value in frame[column]:
+        value = _native(value)
+        if value is not None and str(value) not in values:
+            values.append(str(value))
+            if len(values) >= limit:
+                break
+    return tuple(values)
+
+
 def is_numeric_column(column: pd.Series, delimiter: str | None = None) -> bool:
     """Could serve as a feature: most of its non-empty cells are numbers.
 

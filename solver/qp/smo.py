@@ -47,10 +47,13 @@ FACE_LIMIT = 3_000               # free variables up to which the face system is
                                  # (at 3,070 free, n = 10,000, gamma 100, C 1, face steps
                                  # cost 1-2 s each and did not end the fit: measured)
 STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together, at most
-STEPS_PER_POINT = 50             # ... and at most this many per point: past it (huge C,
+STEPS_PER_POINT = 15             # ... and at most this many per point: past it (large C,
                                  # a nearly hard margin) the decomposition's rounds and its
                                  # exact solve on the free set do better (C = 1e3, 1e4 on
-                                 # 5,000 points, 16 cells: 300 per point 66 s in all, 50: 54 s)
+                                 # 5,000 points, 16 cells: 300 per point 66 s in all, 50: 54 s;
+                                 # C = 100 to 1e4, 8 cells at n = 5,000: 50 per point 54 s,
+                                 # 15: 38 s, 8: 37 s but C = 1e3 slower; n = 10,000, gamma 2,
+                                 # C 100: 13.5 s -> 8.2 s; all measured side by side)
 FACE_STEPS = 30                  # active-set steps after each stage of pair steps
 WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
 FEW_STEPS = 20

@@ -26,6 +26,6 @@ __all__ = [
     "write_points_csv", "neutralise", "HeldOutPoints", "heldout_from_section",
     "heldout_section", "NewRows", "read_new_rows", "scored_csv", "scored_table",
     "write_scored_csv",
-    "EXCEL_SUFFIXES", "TAB_SUFFIXES", "TABLE_FILTER", "TABLE_SUFFIXES", "TablePreview", "column_values", "preview_table",
-    "read_table",
+    "EXCEL_SUFFIXES", "TAB_SUFFIXES", "TABLE_FILTER", "TABLE_SUFFIXES", "TablePreview",
+    "column_values", "preview_table", "read_table",
 ]

@@ -16,8 +16,8 @@ drops what reached one; when they stay inside, bound variables on the wrong
 side of b are released, worst first.  Pair steps run in stages of tighter
 violation (VIOLATIONS), each followed by a finish (unless more than FAR bound
 variables are on the wrong side of a large free set's b: then it rarely ends
-the fit, and its first step alone is a Cholesky factor of K_SS).  Every candidate is judged
-on the whole problem, on F computed afresh from kernel values, by the
+the fit, and its first step alone is a Cholesky factor of K_SS).  Every
+candidate is judged on the whole problem, on F computed afresh from kernel values, by the
 relative duality gap of ``dual_certify`` and by y'a = 0; the result says
 ``optimal`` only when both pass, and otherwise carries its best alpha for the
 decomposition (``dual_solver``) to continue from.

@@ -220,3 +220,15 @@ def test_dataset_from_points_uses_the_signs_as_labels_by_default():
     data = Dataset.from_points([[0, 0], [1, 1]], [-1, 1])
     assert data.labels == (-1, 1)
     assert data.label_mapping == {1: 1, -1: -1}
+
+
+def test_column_values_reads_every_row_in_order_of_first_appearance(tmp_path):
+    from solver.files import column_values
+    path = tmp_path / "sorted.csv"
+    path.write_text("a,b,grade\n" + "".join(f"{i},{i},{'ok' if i < 500 else 'scrap'}\n"
+                                            for i in range(520)) + "521,1,\n")
+    assert column_values(path, "grade") == ("ok", "scrap")          # the empty cell: none
+    assert column_values(path, "absent") == ()
+    many = tmp_path / "many.csv"
+    many.write_text("a,b,lot\n" + "".join(f"{i},{i},L{i}\n" for i in range(80)))
+    assert column_values(many, "lot", limit=50) == tuple(f"L{i}" for i in range(50))

@@ -6,6 +6,7 @@ import math
 import sys
 
 from solver import CAUTION_LINE, INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT, fit
+from solver.result import NO_LINE
 from cli.common import add_config_arguments, add_data_arguments, config_from_args, load_data
 from cli.fit_evidence import add_evidence_arguments, evidence_for
 from cli.outputs import check_outputs, print_json, write_outputs
@@ -59,8 +60,7 @@ def summary_text(result, dataset) -> str:
              f"{dataset.feature_names[0]}, {dataset.feature_names[1]}; "
              f"{config.kernel} kernel, {c_text}, scaling {config.scaling}"]
     if result.w_is_zero:
-        lines.append(f"  w = 0 to rounding: no line separates these classes at this C, so "
-                     f"f(x) = b at every point   b = {result.b:.6g}")
+        lines.append(f"  w = 0 to rounding: {NO_LINE}   b = {result.b:.6g}")
     elif result.w is not None:
         lines.append(f"  w = ({result.w[0]:.6g}, {result.w[1]:.6g})   b = {result.b:.6g}   "
                      f"margin width 2/|w| = {result.margin_width:.6g}")

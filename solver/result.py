@@ -58,6 +58,8 @@ def _frozen(array) -> np.ndarray:
 
 
 ZERO_W = 1e-9      # |sum alpha_i y_i x_i| below this share of sum alpha_i |x_i|: w is 0
+# what the read-outs say then (summary, report, command line)
+NO_LINE = "no line separates these classes at this C, so f(x) = b at every point"
 
 
 @dataclass(frozen=True, eq=False)

@@ -21,6 +21,7 @@ from solver import InputError
 from solver.study import heldout_sentence, summary
 from solver import CAUTIONS, STATUS_TEXT, STATUSES
 from solver import scaling
+from solver.result import NO_LINE
 
 LAYOUT_WIDTH = 1000          # logical width the page is laid out at, in pixels
 PNG_SIZE = (1240, 1754)      # A4 portrait at 150 dpi
@@ -180,8 +181,7 @@ def _data_line(dataset, result, edited=False) -> str:
 
 def _single_fit_line(result) -> str:
     counts = ", ".join(f"{result.count(s)} {STATUS_TEXT[s]}" for s in STATUSES)
-    margin = ("No margin: w = 0 to rounding, so no line separates these classes at this C "
-              "and f(x) = b at every point" if result.w_is_zero
+    margin = (f"No margin: w = 0 to rounding, {NO_LINE}" if result.w_is_zero
               else f"Margin width {result.margin_width:.4g}")
     return (f"{margin}, b = {result.b:.4g}, "
             f"{result.n_support} support vectors ({counts}), training error "

@@ -5,6 +5,7 @@ from __future__ import annotations
 from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN
+from solver.result import NO_LINE
 
 from app.document.document import METADATA, RESULT
 from app.panels.units import length_suffix, units_sentence
@@ -86,15 +87,13 @@ class Summary(QWidget):
         set_ = lambda key, text: self.values[key].setText(text)  # noqa: E731
         unit = length_suffix(result, doc.units)
         if result.w_is_zero:
-            set_("w", "0 to rounding: no line separates these classes at this C, "
-                      "so f(x) = b at every point")
-            set_("margin", "none (w = 0)")
+            set_("w", f"0 to rounding: {NO_LINE}")
         elif result.w is not None:
             set_("w", f"({number(result.w[0])}, {number(result.w[1])})")
         else:
             set_("w", "\u2014 (kernel fit: no w in the plane)")
-        if not result.w_is_zero:
-            set_("margin", number(result.margin_width) + unit)
+        set_("margin", "none (w = 0)" if result.w_is_zero
+             else number(result.margin_width) + unit)
         set_("units", units_sentence(result, doc.units, doc.feature_names))
         set_("b", number(result.b))
         set_("support", str(result.n_support))

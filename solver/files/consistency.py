@@ -111,8 +111,9 @@ def _per_point_problems(results, n) -> list[str]:
 def _norm_problems(results) -> list[str]:
     norm, width = results["weight_norm"], results["margin_width"]
     model, w = results["model"], results["w"]
+    weights = model.get("feature_weights")
     if norm == 0 and width is None and model["kernel"] == "linear" and w is not None \
-            and not any(w) and not any(model.get("feature_weights") or [1.0]):
+            and weights and not any(w) and not any(weights):
         return []          # w = 0 exactly (no line separates the classes): no margin
     if not (math.isfinite(norm) and norm > 0):
         return [f"/results/weight_norm: expected a positive number (distances and the margin "

@@ -224,13 +224,18 @@ def _wrong_side(alpha, F, y, upper) -> int:
     Cholesky factor of K_SS) rarely ends the fit.  (n = 5,000, every stage finish of
     the bench's grid: those that ended it had at most 26; those above 64 failed, after
     0.06-0.66 s; at n = 1,000 none had more than 8.)"""
-    b = certify.intercept(F, y, upper, alpha)
     free = (alpha > 0) & (alpha < upper)
-    can_up = np.where(y > 0, alpha < upper, alpha > 0)
-    can_down = np.where(y > 0, alpha > 0, alpha < upper)
-    wrong = np.where(can_up & ~can_down, F - b, np.where(can_down & ~can_up, b - F, 0.0))
+    wrong = _wrong_by(alpha, F, y, upper, certify.intercept(F, y, upper, alpha))
     scale = 1e-12 * max(1.0, float(np.abs(F).max()))
     return int(np.count_nonzero(~free & (wrong > scale)))
+
+
+def _wrong_by(alpha, F, y, upper, b):
+    """How far each variable is on the wrong side of b: F_i - b for one that can only go
+    up, b - F_i for one that can only go down, 0 for a free one (positive: wrong)."""
+    can_up = np.where(y > 0, alpha < upper, alpha > 0)
+    can_down = np.where(y > 0, alpha > 0, alpha < upper)
+    return np.where(can_up & ~can_down, F - b, np.where(can_down & ~can_up, b - F, 0.0))
 
 
 def _balanced(alpha, y) -> bool:
@@ -311,9 +316,7 @@ def _face_steps(columns, y, upper, alpha, F, limit, tally, patient=False, far=No
                 continue
         else:
             b = certify.intercept(F, y, upper, alpha)
-        can_up = np.where(y > 0, alpha < upper, alpha > 0)
-        can_down = np.where(y > 0, alpha > 0, alpha < upper)
-        wrong = np.where(can_up & ~can_down, F - b, np.where(can_down & ~can_up, b - F, 0.0))
+        wrong = _wrong_by(alpha, F, y, upper, b)
         wrong[S | (wrong <= scale)] = 0.0
         count = int(np.count_nonzero(wrong))
         log.debug("face step: %d free, %d on the wrong side", len(free), count)

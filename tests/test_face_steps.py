@@ -1,19 +1,22 @@
-"""The compiled face steps (solver.qp.face_core) and their kept factor (face_kept).
+"""The compiled face steps (solver.qp.face_core), their factor updates (factor_core) and
+the kept factor (face_kept).
 
 Sources of the expected values, named beside each check:
 - the Cholesky factor's defining identity K_SS = LL', with K written out here
   from the formula exp(-gamma |a - b|^2) (common practice, no source);
 - scikit-learn's SVC (libsvm) at tol=1e-10 on data scikit-learn generates
-  (make_blobs), through test_kernel_fits._reference_check.
+  (make_blobs, make_moons), through test_kernel_fits._reference_check.
 """
+
+from types import SimpleNamespace
 
 import numpy as np
 import pytest
 
 from solver import FitConfig, fit
-from solver.qp import face_core, face_kept, kernel_cache, smo
+from solver.qp import face_core, face_kept, factor_core, kernel_cache, smo
 
-from test_kernel_fits import _blobs, _gaussian, _reference_check
+from test_kernel_fits import _blobs, _gaussian, _moons, _reference_check
 
 
 def _factor(K, room):
@@ -28,7 +31,7 @@ def test_a_deleted_variable_leaves_the_factor_of_the_others(position):
     X = rng.normal(size=(20, 2))
     K = _gaussian(X, X, 2.0)
     L, members = _factor(K, 24), np.arange(24)
-    face_core._delete(L, 20, members, position, np.empty(24))
+    factor_core._delete(L, 20, members, position, np.empty(24))
     kept = np.delete(np.arange(20), position)
     assert list(members[:19]) == list(kept)
     low = np.tril(L[:19, :19])
@@ -40,13 +43,13 @@ def test_an_appended_variable_extends_the_factor_and_a_near_copy_is_refused():
     X = rng.normal(size=(13, 2))
     K = _gaussian(X, X, 2.0)
     L, members = _factor(K[:12, :12], 16), np.arange(16)
-    assert face_core._append(L, 12, members, 12, K[12])
+    assert factor_core._append(L, 12, members, 12, K[12])
     low = np.tril(L[:13, :13])
     np.testing.assert_allclose(low @ low.T, K, atol=1e-13)
     # a point 1e-9 from another: k is 1 - 2e-18 away from the copy's row, K_SS singular
     X[12] = X[3] + 1e-9
     near = _gaussian(X, X, 2.0)[12]
-    assert not face_core._append(L, 12, members, 12, near)
+    assert not factor_core._append(L, 12, members, 12, near)
     assert face_core._add(L, 12, members, 12, near, False, 16) == face_core.DENSE
     assert members[12] == 12
     assert face_core._add(L, 12, members, 12, near, False, 12) == face_core.NEITHER  # > wide
@@ -168,8 +171,10 @@ def test_many_points_hand_over_to_the_rounds_once_their_free_set_fits_a_sub_qp(m
 
 
 def test_a_stage_skips_its_finish_when_many_are_on_the_wrong_side(monkeypatch):
-    # WIDE_FACE 0 and FAR -1: every free set is "large" and every count "many", so the
-    # stage does not finish; the decomposition then ends the fit at the reference's optimum
+    # WIDE_FACE 0 and FAR -1: every free set is "large" and every count "many", so,
+    # without the compiled steps (no room for them), the stage does not finish; the
+    # decomposition then ends the fit at the reference's optimum
+    monkeypatch.setattr(face_kept, "room", lambda *args: 0)
     X, y = _blobs(300)
     y = y.astype(float)
     calls = []
@@ -185,3 +190,26 @@ def test_a_stage_skips_its_finish_when_many_are_on_the_wrong_side(monkeypatch):
     kernel_cache.RECENT.clear()
     result = fit(X, y, FitConfig(C=1.0, kernel="rbf", gamma=10.0))
     _reference_check(X, y, result, 1.0, 10.0)
+
+
+@pytest.mark.parametrize("make, gamma, C", [(_blobs, 10.0, 1.0), (_moons, 50.0, 100.0)])
+def test_long_compiled_steps_from_a_rough_start_end_at_the_optimum_with_F_exact(make, gamma,
+                                                                                  C):
+    # from pair steps stopped at a violation of 1e-2 hundreds of variables change side:
+    # most steps stop at a bound, where F waits for the next release check (only F on
+    # the free set is followed); what the steps hand back must still be y - K beta
+    X, y = make(1_200)
+    y, upper = y.astype(float), np.full(1_200, C)
+    columns = smo.rbf_columns(X, gamma)
+    alpha = np.zeros(1_200)
+    _, _, F = smo._pair_steps(X, y, upper, gamma, alpha, y.copy(), 1e-2, 10**7, columns)
+    F = smo._fresh_F(columns, y, alpha)
+    status, steps = face_kept.face_steps(
+        columns, y, upper, alpha, F, smo.LONG_STEPS, True, None,
+        (smo.RELEASE, smo.WIDE_FACE, smo.NEAR_BOUND, smo.SHORT, smo.SHORT_STEPS),
+        face_kept.room(columns, 1_200, smo.FACE_LIMIT))
+    assert status == face_core.DONE and steps >= 5
+    beta = alpha * y
+    assert np.abs(F - (y - _gaussian(X, X, gamma) @ beta)).max() <= 1e-9   # written out
+    b = smo.certify.intercept(F, y, upper, alpha)
+    _reference_check(X, y, SimpleNamespace(alpha=alpha, b=b), C, gamma)

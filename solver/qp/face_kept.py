@@ -18,6 +18,7 @@ import numpy as np
 import scipy.linalg as sla
 
 from solver.qp import face_core
+from solver.qp.factor_core import PIVOT
 
 REFACTOR = 48          # variables in one set and not the other, above which a fresh factor
 SPARE = 64             # cache rows beyond the factor's members, for the rows a step reads
@@ -101,7 +102,7 @@ def _refactor(kept, columns, free) -> bool:
     except np.linalg.LinAlgError:
         kept.m = -1
         return False
-    if not np.diagonal(kept.L)[:k].min() ** 2 > face_core.PIVOT:
+    if not np.diagonal(kept.L)[:k].min() ** 2 > PIVOT:
         kept.m = -1
         return False
     kept.members[:k] = free

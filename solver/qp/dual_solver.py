@@ -56,6 +56,7 @@ STALL_ROUNDS = 6        # rounds in a row without progress before giving up
 STEADY_ROUNDS = 2       # rounds with the same number free before an exact solve on them all
 STEADY_SHARE = 0.05     # ... within this share (n = 5,000, 8 cells: 0.01 40 s, 0.05 35 s),
 STEADY_SHARE_LARGE = 0.01   # above 1,500 free (n = 10,000, gamma 50, C 1: 76 rounds, 101 at 5%)
+STEADY_SHARE_FREE = 1_500
 FACE_TRIES = 4          # ... tried at most this often in one fit,
 TRY_AGAIN = 0.1         # ... each time the gap fell to this share of the last try's
 PROGRESS = 0.99         # a round that leaves the gap above this share of the best is no progress
@@ -209,7 +210,7 @@ def _decompose(columns, y, upper, alpha, options, hard, full_first) -> DualSolut
                 status = "optimal"
                 break
         free_now = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
-        share = STEADY_SHARE if free_now <= smo.COMPILED_PATIENT_FREE else STEADY_SHARE_LARGE
+        share = STEADY_SHARE if free_now <= STEADY_SHARE_FREE else STEADY_SHARE_LARGE
         steady = steady + 1 if abs(free_now - free_before) <= share * free_now else 0
         free_before = free_now
         if not hard and steady >= STEADY_ROUNDS and tries < FACE_TRIES \

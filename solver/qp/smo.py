@@ -67,12 +67,6 @@ PATIENT_STEPS = 30               # is patient, short steps do not end it, for th
 PATIENT_FREE = 1_000             # steps, when at most this many are free (n = 1,000 moons,
                                  # gamma 10, C 1: from 1e-4 six patient steps end the fit,
                                  # where the impatient finish stopped and a third stage ran)
-COMPILED_PATIENT_STEPS = 100     # ... and for the decomposition's exact solve, compiled,
-COMPILED_PATIENT_FREE = 1_500    # on at most this many free (n = 5,000 moons, gamma 50,
-                                 # C 1: at round 6 on 1,397 free, 30 steps fell short and 6
-                                 # more rounds ran, 100 ended it there; n = 10,000 blobs,
-                                 # gamma 50, C 1: on 2,242 free 100 steps fell short too,
-                                 # at 50 ms each: measured)
 WARM_STEPS = 30                  # face steps straight from a warm start, at most ...
 FAR = 64                         # ... ended early when a release finds more than this many
                                  # on the wrong side (gamma moved: pair steps do better)
@@ -199,10 +193,11 @@ def finish_on_face(columns, y, upper, alpha, gradient, gap_target):
     alpha = np.array(alpha, dtype=float)
     F = -y * gradient
     free = np.count_nonzero((alpha > 0) & (alpha < upper))
+    # compiled, the long finish of a stage (n = 10,000 blobs, gamma 50, C 100: 28 rounds
+    # and 9.7 s with 100 steps on at most 1,500 free, 5 rounds and 7.1 s so)
     compiled = face_kept.available(columns, len(y), free, FACE_LIMIT)
-    long = compiled and free <= COMPILED_PATIENT_FREE
-    _finish(columns, y, upper, alpha, F, COMPILED_PATIENT_STEPS if long else PATIENT_STEPS,
-            [0], patient=True)
+    _finish(columns, y, upper, alpha, F, LONG_STEPS if compiled else PATIENT_STEPS, [0],
+            patient=True)
     F = _fresh_F(columns, y, alpha)
     b, gap = _certificate(alpha, F, y, upper)
     if gap <= gap_target and _balanced(alpha, y):

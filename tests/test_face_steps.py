@@ -197,7 +197,10 @@ def test_long_compiled_steps_from_a_rough_start_end_at_the_optimum_with_F_exact(
                                                                                   C):
     # from pair steps stopped at a violation of 1e-2 hundreds of variables change side:
     # most steps stop at a bound, where F waits for the next release check (only F on
-    # the free set is followed); what the steps hand back must still be y - K beta
+    # the free set is followed); what the steps hand back must still be y - K beta.  On
+    # the moons at C 100, released variables push each other out again: releasing 16
+    # every time (and putting near-bound ones on their bound at steps of 0) did not end
+    # within LONG_STEPS (mutation-checked)
     X, y = make(1_200)
     y, upper = y.astype(float), np.full(1_200, C)
     columns = smo.rbf_columns(X, gamma)

@@ -44,7 +44,8 @@ def run(args) -> int:
                          dataset.label_mapping, drop_incomplete=args.drop_incomplete)
     if rows.skipped:
         print(f"skipped rows at line(s) {', '.join(map(str, rows.skipped))}", file=sys.stderr)
-    scores = score(Classifier.from_figures(experiment.results), rows.X, dataset.label_mapping)
+    scores = score(Classifier.from_figures(experiment.results, dataset.X), rows.X,
+                   dataset.label_mapping)
     counts = None if rows.signs is None else confusion(rows.signs, scores.signs,
                                                        dataset.label_mapping)
     if args.json:

@@ -158,11 +158,10 @@ class FitResult:
         separates the classes at this C.  That is the exact optimum for classes no line
         splits better than a constant (heavily overlapping ones at small C); the computed
         |w| is then rounding, about 1e-14, and 2/|w| would read 1e14."""
-        if self.w is None or not self.alpha.any():
+        if self.w is None:
             return False
-        scaled = (self.X - self.model.shift) / self.model.scale
-        sizes = float(np.dot(self.alpha, np.linalg.norm(scaled, axis=1)))
-        return float(np.linalg.norm(self.model.feature_weights)) <= ZERO_W * sizes
+        return weights_cancel(self.model.feature_weights, self.alpha, self.X,
+                              self.model.shift, self.model.scale)
 
     @property
     def margin_width(self) -> float:
@@ -245,3 +244,17 @@ class FitResult:
 def _finite(value):
     value = float(value)
     return value if np.isfinite(value) else None
+
+
+def weights_cancel(feature_weights, alpha, X, shift, scale) -> bool:
+    """Whether w = sum_i alpha_i y_i u_i (u: the scaled points) is 0 to rounding: at most
+    ZERO_W of sum_i alpha_i |u_i| (``FitResult.w_is_zero``; also for stored figures,
+    whose weight_norm keeps the rounding)."""
+    alpha = np.asarray(alpha, dtype=float)
+    if feature_weights is None or not alpha.any():
+        return False
+    X = np.asarray(X, dtype=float)
+    shift = np.zeros(X.shape[1]) if shift is None else np.asarray(shift, dtype=float)
+    scale = np.ones(X.shape[1]) if scale is None else np.asarray(scale, dtype=float)
+    sizes = float(np.dot(alpha, np.linalg.norm((X - shift) / scale, axis=1)))
+    return float(np.linalg.norm(feature_weights)) <= ZERO_W * sizes

@@ -82,3 +82,34 @@ def test_a_w_of_rounding_agrees_with_a_w_of_other_rounding():
     stored["w"] = [1e-7, 0.0]           # 1e-7 * 100 moves f by 1e-5: a real difference
     rows = {row.quantity: row for row in agreement(stored, fresh, result.penalties, 100.0)}
     assert not rows["w"].agrees
+
+
+def _noisy_cross():
+    """The cross three times, shifted a little: w = 0 to rounding (1e-14), not exactly."""
+    X = np.tile(CROSS_X, (3, 1)) + np.repeat([[0.0, 0.0], [0.01, 0.02], [-0.02, 0.01]], 4,
+                                             axis=0)
+    return Dataset.from_points(X, np.tile(CROSS_Y, 3))
+
+
+def test_no_distance_to_no_boundary_in_scores_exports_and_stored_figures():
+    # |f| / |w| with w = 0 read inf (exactly 0) or 1e14 (rounding); the points table of
+    # the window already said "no distance": held-out scores, predict and the exported
+    # table now say so too (NaN)
+    from solver.files.exports import POINT_COLUMNS, points_table
+    from solver.study.heldout import Classifier, score
+    new = np.array([[0.5, 0.5], [-2.0, 1.0]])
+    for dataset in (_noisy_cross(), Dataset.from_points(CROSS_X, CROSS_Y)):
+        result = fit(dataset.X, dataset.y, FitConfig(C=1.0))
+        assert result.w_is_zero or result.weight_norm == 0.0
+        assert np.isnan(score(result, new, dataset.label_mapping).distance).all()
+        stored = Classifier.from_figures(result.to_dict(), dataset.X)      # as predict
+        assert np.isnan(score(stored, new, dataset.label_mapping).distance).all()
+        header, rows = points_table(dataset, result)
+        column = next(k for k, c in enumerate(POINT_COLUMNS) if c.startswith("distance"))
+        assert all(np.isnan(row[column]) for row in rows)
+    # a fit with a boundary keeps its distances
+    gauge = gauge_points()
+    result = fit(gauge.X, gauge.y, FitConfig(C=1.0))
+    stored = Classifier.from_figures(result.to_dict(), gauge.X)
+    assert np.allclose(score(stored, new, gauge.label_mapping).distance,
+                       np.abs(result.decision_function(new)) / result.weight_norm)

@@ -14,6 +14,7 @@ import numpy as np
 from solver.files.atomic import atomic_open
 from solver.files.dataset import Dataset
 from solver.errors import InputError
+from solver.result import weights_cancel
 
 # OWASP, "CSV Injection": cells starting with these characters are read as
 # formulas by spreadsheets; prefixing a single quote makes them plain text.
@@ -36,9 +37,12 @@ def points_table(dataset: Dataset, result) -> tuple[list[str], list[list]]:
     n = len(dataset)
     decision = np.asarray(figures["decision"], dtype=float)
     functional = dataset.y * decision                        # y_i f(x_i)
-    if figures["weight_norm"] > 0:
+    model = figures["model"]
+    if figures["weight_norm"] > 0 and not weights_cancel(
+            model["feature_weights"], figures["alpha"], dataset.X, model["shift"],
+            model["scale"]):
         distance = functional / figures["weight_norm"]       # y_i f(x_i) / |w|
-    else:                              # w = 0: no boundary, no distance (nan)
+    else:                              # w = 0 (to rounding): no boundary, no distance (nan)
         distance = np.full(n, np.nan)
     names = [_with_unit(name, unit) for name, unit in zip(dataset.feature_names, dataset.units)]
     header = [c.format(*names) for c in POINT_COLUMNS]

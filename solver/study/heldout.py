@@ -20,7 +20,7 @@ import numpy as np
 
 from solver.errors import InputError
 from solver.model import DecisionModel
-from solver.result import _frozen
+from solver.result import _frozen, weights_cancel
 from solver.study.agreement import RELATIVE, Agreement
 
 DATA_UNITS = "data units"
@@ -34,15 +34,18 @@ class Classifier:
     model: DecisionModel
     weight_norm: float          # |w|: original units (linear) or feature space
     kernel: str
+    no_boundary: bool = False   # w = 0 (to rounding): f = b everywhere, no distances
 
     @classmethod
     def from_result(cls, result) -> "Classifier":
         return cls(model=result.model, weight_norm=float(result.weight_norm),
-                   kernel=result.config.kernel)
+                   kernel=result.config.kernel,
+                   no_boundary=bool(result.w_is_zero) or not result.weight_norm > 0)
 
     @classmethod
-    def from_figures(cls, figures: dict) -> "Classifier":
-        """From the figures an experiment file stores (``Experiment.results``)."""
+    def from_figures(cls, figures: dict, X=None) -> "Classifier":
+        """From the figures an experiment file stores (``Experiment.results``); ``X``, the
+        points they were fitted on, tells a w of rounding from a true one."""
         m = figures["model"]
 
         def array(key):
@@ -54,7 +57,11 @@ class Classifier:
                               feature_weights=array("feature_weights"),
                               support_vectors=None if vectors is None else vectors.reshape(-1, 2),
                               coefficients=array("coefficients"))
-        return cls(model=model, weight_norm=float(figures["weight_norm"]), kernel=m["kernel"])
+        norm = float(figures["weight_norm"])
+        cancel = X is not None and weights_cancel(model.feature_weights, figures["alpha"], X,
+                                                  model.shift, model.scale)
+        return cls(model=model, weight_norm=norm, kernel=m["kernel"],
+                   no_boundary=cancel or not norm > 0)
 
     def decision_function(self, points) -> np.ndarray:
         return self.model.decision_function(points)
@@ -67,7 +74,7 @@ class Scores:
     decision: np.ndarray        # f(x)
     signs: np.ndarray           # predicted +1 / -1
     labels: tuple               # predicted label as written in the experiment
-    distance: np.ndarray        # |f(x)| / |w|, >= 0
+    distance: np.ndarray        # |f(x)| / |w|, >= 0 (NaN when w = 0)
     in_band: np.ndarray         # |f(x)| < 1: inside the margin band, a close call
     distance_space: str         # DATA_UNITS (linear) or FEATURE_SPACE (kernels)
 
@@ -138,7 +145,9 @@ def score(fitted, points, label_mapping: dict) -> Scores:
     by_sign = _labels_by_sign(label_mapping)
     decision = classifier.decision_function(points) if len(points) else np.zeros(0)
     signs = np.where(decision >= 0, 1, -1)
-    with np.errstate(divide="ignore", invalid="ignore"):     # w = 0: no boundary
+    if classifier.no_boundary:                              # w = 0: no boundary
+        distance = np.full(len(decision), np.nan)
+    else:
         distance = np.abs(decision) / classifier.weight_norm
     return Scores(decision=decision, signs=signs,
                   labels=tuple(by_sign[int(s)] for s in signs),

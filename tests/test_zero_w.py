@@ -42,9 +42,21 @@ def test_the_summary_says_no_line_separates_instead_of_a_huge_margin(window, qtb
         xs, _ = line.getData()
         assert xs is None or len(xs) == 0
     assert not items.arrow.isVisible()
+
+    def listed(item):
+        return any(sample.item is item for sample, _ in items.legend.items)
+    # ... nor lists them in its legend; the support vectors it does draw
+    assert not any(listed(i) for i in (items.boundary, items.band, items.slack, items.weight))
+    assert listed(items.rings)
     table = window.points_table.model
     table.flush()                                       # the table refreshes on a timer
     assert table.data(table.index(0, 6)) == "\u2014"          # no distance to no boundary
+    names = [label.text for _, label in items.legend.items]
+    load_points(window, qtbot, gauge_points())            # a fit with a line: back, in order
+    fit_parts = [items.boundary.name(), items.band.name(), items.weight.name(),
+                 items.slack.name()]
+    assert [t for _, label in items.legend.items if (t := label.text) in fit_parts] == fit_parts
+    assert len(items.legend.items) == len(names) + 4
 
 
 def _cross_file(tmp_path):

@@ -161,21 +161,27 @@ class SceneItems:
             self.rings.setData([], [])
             self.slack.setData([], [])
         self._draw_weight(result)
-        self._legend_lists_weight(result.w is not None)
+        self._legend_lists_fit(result)
 
-    def _legend_lists_weight(self, show: bool):
-        """Kernel fits draw no w, so their legend does not list it."""
+    def _legend_lists_fit(self, result):
+        """The legend lists what the fit draws: no w for a kernel fit, and no boundary,
+        band, w or slack when w = 0 (to rounding), which has no line to draw."""
         if self.legend is None:
             return
-        listed = any(sample.item is self.weight for sample, _ in self.legend.items)
-        if show == listed:
+        no_line = result.w is not None and result.w_is_zero
+        drawn = [] if no_line else [self.boundary, self.band] + (
+            [self.weight] if result.w is not None else []) + [self.slack]
+        parts = (self.boundary, self.band, self.weight, self.slack, self.ghost_boundary)
+        listed = [sample.item for sample, _ in self.legend.items
+                  if any(sample.item is part for part in parts)]
+        ghost = any(item is self.ghost_boundary for item in listed)
+        wanted = drawn + ([self.ghost_boundary] if ghost else [])
+        if len(listed) == len(wanted) and all(a is b for a, b in zip(listed, wanted)):
             return
-        self.legend.removeItem(self.slack)       # keep the order: ..., w, slack
-        if listed:
-            self.legend.removeItem(self.weight)
-        else:
-            self.legend.addItem(self.weight, self.weight.name())
-        self.legend.addItem(self.slack, self.slack.name())
+        for item in listed:
+            self.legend.removeItem(item)
+        for item in wanted:                  # in the order: boundary, band, w, slack, ghost
+            self.legend.addItem(item, item.name())
 
     def set_pinned(self, pinned, rect):
         self._legend_lists_ghost(pinned is not None)

@@ -77,3 +77,22 @@ def test_the_positive_class_choices_cover_labels_past_the_first_rows(qtbot, tmp_
     dialog.positive.setCurrentIndex(2)
     assert dialog.ok_button.isEnabled()
     assert dialog.dataset.mapping_text().startswith("'scrap' -> +1")
+
+
+def test_the_dialog_reads_the_whole_file_once_however_often_the_choices_change(
+        qtbot, tmp_path, temporary_settings, monkeypatch):
+    import app.dialogs.import_dialog as module
+    reads = []
+    read = module.read_table
+    monkeypatch.setattr(module, "read_table", lambda path: reads.append(path) or read(path))
+    path = _write(tmp_path / "lots.csv", [(1.0 + i / 50, 2.0 + i % 7, "ok" if i % 3 else "scrap")
+                                          for i in range(120)])
+    dialog = _dialog(qtbot, path)
+    for index in (2, 1, 2):
+        dialog.positive.setCurrentIndex(index)
+    dialog.drop.setChecked(True)
+    dialog.label.setCurrentText("flatness [um]")     # a number column: still no new read
+    dialog.label.setCurrentText("verdict")
+    dialog.positive.setCurrentIndex(2)              # the choices were filled afresh
+    assert len(reads) == 1 and dialog.ok_button.isEnabled()
+    assert dialog.dataset.mapping_text().startswith("'scrap' -> +1")

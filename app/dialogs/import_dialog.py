@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QDialog, QDialogButtonBox, 
                                QLabel, QTableView, QVBoxLayout)
 
 from app.dialogs.plain_words import plain
-from solver.files import load_table
+from solver.files import load_table, read_table
 from solver import SlacklineError
 
 PREVIEW_ROWS = 20
@@ -27,6 +27,7 @@ class ImportDialog(QDialog):
         self.path = path
         self.dataset = None
         self.preview = None
+        self._table = None           # the whole file, once read (_whole_table)
         self.feature_x = QComboBox(objectName="import_feature_x")
         self.feature_y = QComboBox(objectName="import_feature_y")
         self.label = QComboBox(objectName="import_label")
@@ -110,7 +111,7 @@ class ImportDialog(QDialog):
             return
         from solver.files import column_values
         try:         # every label in the file, not only the preview's first rows
-            values = [v for v in column_values(self.path, self.label.currentText())
+            values = [v for v in column_values(self._whole_table(), self.label.currentText())
                       if v != "nan"]
         except (SlacklineError, ValueError):
             values = []
@@ -120,6 +121,13 @@ class ImportDialog(QDialog):
         for value in sorted(values):
             self.positive.addItem(value, value)
         self.positive.blockSignals(False)
+
+    def _whole_table(self):
+        """The whole file, read once per dialog (each choice of columns checks it again):
+        a FileFormatError is raised again on every call, as a fresh read would."""
+        if self._table is None:
+            self._table = read_table(self.path)
+        return self._table
 
     def _check(self, *_):
         self.dataset = None
@@ -132,7 +140,8 @@ class ImportDialog(QDialog):
                                            self.feature_y.currentText()],
                                  label=self.label.currentText(),
                                  positive=self.positive.currentData(),
-                                 drop_incomplete=self.drop.isChecked())
+                                 drop_incomplete=self.drop.isChecked(),
+                                 table=self._whole_table())
         except SlacklineError as exc:
             self._show_error(str(exc), getattr(exc, "problems", []))
             return

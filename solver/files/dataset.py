@@ -129,15 +129,16 @@ def split_unit(header: str) -> tuple[str, str]:
 
 
 def load_table(path, features=None, label=None, positive=None,
-               drop_incomplete=False) -> Dataset:
+               drop_incomplete=False, table=None) -> Dataset:
     """Read a CSV, TSV (or .xlsx) file with a header row into a Dataset.
 
     ``features``: two column names (default: the first two numeric columns
     other than the label); ``label``: the label column (default: the last).
     Rows with a missing or non-numeric feature or a missing label are listed
-    by line; they are skipped only with ``drop_incomplete``.
+    by line; they are skipped only with ``drop_incomplete``.  ``table``: the file as
+    ``read_table(path)`` already read it (the import dialog reads it once).
     """
-    table = read_table(path)
+    table = read_table(path) if table is None else table
     frame, name = table.frame, table.name
     columns = list(frame.columns)
     label = _column(label, columns, name, "label") if label is not None else columns[-1]

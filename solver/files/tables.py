@@ -132,15 +132,16 @@ def preview_table(path, rows: int = 20) -> TablePreview:
                         delimiter=table.delimiter)
 
 
-def column_values(path, column, limit: int = 50) -> tuple[str, ...]:
-    """The distinct non-empty values of ``column`` over the whole file, in order of first
-    appearance, at most ``limit`` (the import dialog's positive-class choices: a file
-    sorted by label shows one label only in its first rows)."""
-    frame = read_table(path).frame
+def column_values(source, column, limit: int = 50) -> tuple[str, ...]:
+    """The distinct non-empty values of ``column`` over the whole file (``source``: its
+    path, or the RawTable read from it), in order of first appearance, at most ``limit``
+    (the import dialog's positive-class choices: a file sorted by label shows one label
+    only in its first rows)."""
+    frame = (source if isinstance(source, RawTable) else read_table(source)).frame
     if column not in frame.columns:
         return ()
     values = []
-    for value in frame[column]:
+    for value in frame[column].dropna().unique():       # in order of first appearance
         value = _native(value)
         if value is not None and str(value) not in values:
             values.append(str(value))

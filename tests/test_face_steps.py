@@ -218,16 +218,15 @@ def test_long_compiled_steps_from_a_rough_start_end_at_the_optimum_with_F_exact(
     _reference_check(X, y, SimpleNamespace(alpha=alpha, b=b), C, gamma)
 
 
-def test_a_stage_on_a_large_free_set_finishes_with_long_compiled_steps_alone(monkeypatch):
-    # WIDE_FACE 0: every free set is "large"; with room for the compiled steps the stage's
-    # finish is the long patient one, with no Python steps after it, and ends the fit
+def test_a_stage_finishes_with_long_compiled_steps_alone(monkeypatch):
+    # with room for the compiled steps the stage's finish is the long patient one, with
+    # no Python steps after it, and ends the fit
     X, y = _blobs(400)
     y = y.astype(float)
     calls = []
     finish = smo._finish
     monkeypatch.setattr(smo, "_finish",
                         lambda *a, **k: calls.append((a[5], k.get("python"))) or finish(*a, **k))
-    monkeypatch.setattr(smo, "WIDE_FACE", 0)
     found = smo.solve_rbf(X, y, np.ones(400), 10.0, 5e-9, stages=1)
     assert calls == [(smo.LONG_STEPS, False)] and found.optimal
     _reference_check(X, y, SimpleNamespace(alpha=found.alpha, b=found.b), 1.0, 10.0)

@@ -14,12 +14,12 @@ The finish is a primal active-set method on these systems (``_face_steps``):
 when the corrected alphas leave the box the step stops at the first bound and
 drops what reached one; when they stay inside, bound variables on the wrong
 side of b are released, worst first.  Pair steps run in stages of tighter
-violation (VIOLATIONS), each followed by a finish: on a large free set whose
-kernel rows the cache holds, a long patient one in compiled steps (LONG_STEPS),
-which from the first stage often ends the fit; otherwise a short one, skipped
-when more than FAR bound variables are on the wrong side of a large free set's
-b (then it rarely ends the fit, and its first step alone is a Cholesky factor
-of K_SS).  Every
+violation (VIOLATIONS), each followed by a finish: when the cache holds the
+free set's kernel rows, a long patient one in compiled steps (LONG_STEPS),
+which from the first stage often ends the fit; otherwise a short one in
+Python, skipped when more than FAR bound variables are on the wrong side of a
+large free set's b (then it rarely ends the fit, and its first step alone is a
+Cholesky factor of K_SS).  Every
 candidate is judged on the whole problem, on F computed afresh from kernel values, by the
 relative duality gap of ``dual_certify`` and by y'a = 0; the result says
 ``optimal`` only when both pass, and otherwise carries its best alpha for the
@@ -56,10 +56,11 @@ STEPS_PER_POINT = 15             # ... and at most this many per point: past it 
                                  # C = 100 to 1e4, 8 cells at n = 5,000: 50 per point 54 s,
                                  # 15: 38 s, 8: 37 s but C = 1e3 slower; n = 10,000, gamma 2,
                                  # C 100: 13.5 s -> 8.2 s; all measured side by side)
-FACE_STEPS = 30                  # active-set steps after each stage of pair steps
+FACE_STEPS = 30                  # active-set steps in Python after each stage of pair steps
 WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
 FEW_STEPS = 20
-LONG_STEPS = 400                 # ... or, when they run compiled, this many, patient
+LONG_STEPS = 400                 # ... or, on any free set, when they run compiled, this
+                                 # many, patient
 SHORT, SHORT_STEPS = 1e-2, 3     # face steps this short, this many in a row: back to pairs
                                  # (one, above WIDE_FACE free: each costs |S|^3 / 3)
 PATIENT_FROM = 2                 # from this stage on (and after a warm start) the finish
@@ -134,11 +135,12 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
         patient = (stage >= PATIENT_FROM or alpha_start is not None) and free <= PATIENT_FREE
         paired = alpha.copy()
-        if free > WIDE_FACE and face_kept.available(columns, n, free, FACE_LIMIT):
-            # compiled face steps on a large free set: a long patient finish, which from
-            # the first stage's 1e-3 ends most fits (n = 5,000, gamma 50, C 1: 203 steps
-            # from 1,744 free with 104 on the wrong side, 0.8 s, where a second stage and
-            # four rounds took 1.3 s); no Python steps when they hand back
+        if face_kept.available(columns, n, free, FACE_LIMIT):
+            # compiled face steps: a long patient finish, which from the first stage's
+            # 1e-3 ends most fits (n = 5,000, gamma 50, C 1: 203 steps from 1,744 free
+            # with 104 on the wrong side, 0.8 s, where a second stage and four rounds
+            # took 1.3 s; n = 1,000, 40 cells: 584 ms -> 573 ms in all, when it also
+            # serves at most 200 free); no Python steps when they hand back
             finished = True
             _finish(columns, y, upper, alpha, F, LONG_STEPS, tally, True, python=False)
         else:

@@ -65,3 +65,12 @@ def test_an_unknown_label_is_refused_and_names_the_two_classes(window, qtbot):
     assert window.document.y[1] == 1
     message = window.points_table.refusal.text()
     assert "'maybe'" in message and "'pass'" in message and "'reject'" in message
+
+
+def test_numbers_with_an_exponent_are_written_short_enough_for_their_column():
+    # a decision value of -1.9715e-5 read "-1.972e-..." in a 1280-pixel window
+    from app.panels.points_table import _compact
+    assert _compact(-1.9715e-05, 4) == "-1.97e-5"
+    assert _compact(2.5e-12, 3) == "2.5e-12"
+    assert _compact(1e100, 4) == "1e100"
+    assert _compact(0.4321, 4) == "0.4321" and _compact(-3.0, 4) == "-3"

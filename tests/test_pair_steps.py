@@ -177,16 +177,22 @@ def test_class_weights_match_the_reference_with_the_same_weights():
     assert result.alpha[y > 0].max() <= 8.0 and result.alpha[y < 0].max() <= 1.0
 
 
-def test_a_huge_C_hands_over_to_the_decomposition_and_stays_exact(monkeypatch):
-    """C = 1e6 is nearly a hard margin: pair steps would need millions of steps;
-    past STEPS_PER_POINT per point the decomposition finishes from their point."""
+@pytest.mark.parametrize("long_steps", [None, 0])
+def test_a_huge_C_stops_the_pair_steps_early_and_stays_exact(monkeypatch, long_steps):
+    """C = 1e6 is nearly a hard margin: pair steps would need millions of steps; they
+    stop at STEPS_PER_POINT per point, and the long compiled face finish ends the fit
+    from there (it did not before it took 400 steps: the decomposition did, as it
+    still does without that finish, LONG_STEPS 0)."""
+    if long_steps is not None:
+        monkeypatch.setattr(smo, "LONG_STEPS", long_steps)
     calls = []
     solve = smo.solve_rbf
     monkeypatch.setattr(smo, "solve_rbf",
                         lambda *a, **kw: calls.append(solve(*a, **kw)) or calls[-1])
     X, y = _moons(300)
     result = _fit(X, y, 1e6, 1.0)
-    assert calls and not calls[-1].optimal and calls[-1].steps <= smo.STEPS_PER_POINT * 300
+    assert calls and calls[-1].steps <= smo.STEPS_PER_POINT * 300
+    assert calls[-1].optimal == (long_steps is None)     # else: handed over
     assert result.converged and result.relative_gap <= 1e-8
     margin = y * result.decision                              # KKT written out
     assert (margin[result.alpha == 0] >= 1 - 1e-6).all()

@@ -180,10 +180,22 @@ class PointsModel(QAbstractTableModel):
             if isinstance(value, float) and value != value:
                 return "\u2014"              # NaN: no distance without a boundary (w = 0)
             digits = {1: 6, 2: 6, 7: 3, 8: 3}.get(column, 4)   # alpha, slack: room for e-12
-            return f"{value:.{digits}g}" if isinstance(value, float) else str(value)
+            return _compact(value, digits) if isinstance(value, float) else str(value)
         if role == Qt.TextAlignmentRole and index.column() not in (3, 9):
             return int(Qt.AlignRight | Qt.AlignVCenter)
         return None
+
+
+def _compact(value: float, digits: int) -> str:
+    """``value`` to ``digits`` significant digits, an exponent written short and with one
+    digit less: -1.97e-5, not -1.972e-05, which a column of the table's width clips."""
+    text = f"{value:.{digits}g}"
+    if "e" not in text:
+        return text
+    mantissa, exponent = f"{value:.{max(0, digits - 2)}e}".split("e")
+    if "." in mantissa:
+        mantissa = mantissa.rstrip("0").rstrip(".")
+    return f"{mantissa}e{int(exponent)}"
 
 
 class StatusFilter(QSortFilterProxyModel):

@@ -57,6 +57,9 @@ def test_the_summary_says_no_line_separates_instead_of_a_huge_margin(window, qtb
                  items.slack.name()]
     assert [t for _, label in items.legend.items if (t := label.text) in fit_parts] == fit_parts
     assert len(items.legend.items) == len(names) + 4
+    texts = [label.text for _, label in items.legend.items]     # right after the rings
+    rings = texts.index(items.rings.name())
+    assert texts[rings + 1:rings + 5] == fit_parts
 
 
 def _cross_file(tmp_path):

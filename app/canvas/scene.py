@@ -178,10 +178,18 @@ class SceneItems:
         wanted = drawn + ([self.ghost_boundary] if ghost else [])
         if len(listed) == len(wanted) and all(a is b for a, b in zip(listed, wanted)):
             return
-        for item in listed:
+        # the fit's entries go right after the support vectors' (boundary, band, w,
+        # slack, ghost), the other entries after them as they were
+        entries = [(sample.item, label.text) for sample, label in self.legend.items]
+        start = next(k for k, (item, _) in enumerate(entries) if item is self.rings) + 1
+        later = [(item, text) for item, text in entries[start:]
+                 if not any(item is part for part in parts)]
+        for item, _ in entries[start:]:
             self.legend.removeItem(item)
-        for item in wanted:                  # in the order: boundary, band, w, slack, ghost
+        for item in wanted:
             self.legend.addItem(item, item.name())
+        for item, text in later:
+            self.legend.addItem(item, text)
 
     def set_pinned(self, pinned, rect):
         self._legend_lists_ghost(pinned is not None)

@@ -25,16 +25,29 @@ def _factor(K, room):
     return L
 
 
+def _logical(L, order, m):
+    """Row r of the factor is row order[r] of the array (factor_core)."""
+    return np.tril(L[order[:m], :m])
+
+
 @pytest.mark.parametrize("position", [0, 7, 18, 19])
 def test_a_deleted_variable_leaves_the_factor_of_the_others(position):
     rng = np.random.default_rng(4)
     X = rng.normal(size=(20, 2))
     K = _gaussian(X, X, 2.0)
-    L, members = _factor(K, 24), np.arange(24)
-    factor_core._delete(L, 20, members, position, np.empty(24))
+    L, order, members = _factor(K, 24), np.arange(24), np.arange(24)
+    factor_core._delete(L, order, 20, members, position, np.empty(24))
     kept = np.delete(np.arange(20), position)
     assert list(members[:19]) == list(kept)
-    low = np.tril(L[:19, :19])
+    low = _logical(L, order, 19)
+    np.testing.assert_allclose(low @ low.T, K[np.ix_(kept, kept)], atol=1e-13)
+    # a second deletion, then an append into the row the first gave up
+    factor_core._delete(L, order, 19, members, 3, np.empty(24))
+    kept = np.delete(kept, 3)
+    assert factor_core._append(L, order, 18, members, position, K[position])
+    kept = np.r_[kept, position]
+    assert list(members[:19]) == list(kept) and sorted(order) == list(range(24))
+    low = _logical(L, order, 19)
     np.testing.assert_allclose(low @ low.T, K[np.ix_(kept, kept)], atol=1e-13)
 
 
@@ -42,17 +55,17 @@ def test_an_appended_variable_extends_the_factor_and_a_near_copy_is_refused():
     rng = np.random.default_rng(5)
     X = rng.normal(size=(13, 2))
     K = _gaussian(X, X, 2.0)
-    L, members = _factor(K[:12, :12], 16), np.arange(16)
-    assert factor_core._append(L, 12, members, 12, K[12])
-    low = np.tril(L[:13, :13])
+    L, order, members = _factor(K[:12, :12], 16), np.arange(16), np.arange(16)
+    assert factor_core._append(L, order, 12, members, 12, K[12])
+    low = _logical(L, order, 13)
     np.testing.assert_allclose(low @ low.T, K, atol=1e-13)
     # a point 1e-9 from another: k is 1 - 2e-18 away from the copy's row, K_SS singular
     X[12] = X[3] + 1e-9
     near = _gaussian(X, X, 2.0)[12]
-    assert not factor_core._append(L, 12, members, 12, near)
-    assert face_core._add(L, 12, members, 12, near, False, 16) == face_core.DENSE
+    assert not factor_core._append(L, order, 12, members, 12, near)
+    assert face_core._add(L, order, 12, members, 12, near, False, 16) == face_core.DENSE
     assert members[12] == 12
-    assert face_core._add(L, 12, members, 12, near, False, 12) == face_core.NEITHER  # > wide
+    assert face_core._add(L, order, 12, members, 12, near, False, 12) == face_core.NEITHER
 
 
 def _spy(monkeypatch):

@@ -35,7 +35,7 @@ from __future__ import annotations
 import numba as nb
 import numpy as np
 
-from solver.qp.factor_core import _append, _delete, _lu_solve, _solve
+from solver.qp.factor_core import _append, _delete, _lu_solve, _remove, _solve
 from solver.qp.smo_core import _slot
 
 DONE, STOPPED, HAND_BACK = 1, 0, -1      # what face_steps returns first
@@ -54,25 +54,16 @@ def _row(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, counts):
 
 
 @nb.njit(cache=True, nogil=True)
-def _add(L, m, members, j, row_j, dense, wide):
+def _add(L, order, m, members, j, row_j, dense, wide):
     """Add j to the set: to the factor, or (dense: no factor is kept) to members only.
     Returns FACTOR or DENSE, what the set is afterwards (a factor that cannot take j is
     given up for dense solves, up to ``wide`` members), or NEITHER."""
-    if not dense and _append(L, m, members, j, row_j):
+    if not dense and _append(L, order, m, members, j, row_j):
         return FACTOR
     if m + 1 > wide:
         return NEITHER
     members[m] = j
     return DENSE
-
-
-@nb.njit(cache=True, nogil=True)
-def _remove(L, m, members, p, x, dense):
-    if dense:
-        for r in range(p + 1, m):
-            members[r - 1] = members[r]
-    else:
-        _delete(L, m, members, p, x)
 
 
 @nb.njit(cache=True, nogil=True)
@@ -129,11 +120,12 @@ def _solved(X, gamma, F, members, m, d, b, tolerance, checked, residual, rows, s
 
 
 @nb.njit(cache=True, nogil=True)
-def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far, release,
-               wide, near_bound, short_t, short_steps, rows, slot_of, owner, stamp):
+def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patient, far,
+               release, wide, near_bound, short_t, short_steps, rows, slot_of, owner, stamp):
     """Face steps from the free set of alpha (alpha, F in place) until no variable is on
     the wrong side of b, ``limit`` steps, or a reason to stop.  L: the lower Cholesky
-    factor of K_SS = LL' on the set members[:m] (room for len(members) variables); it
+    factor of K_SS = LL' on the set members[:m] (room for len(members) variables), row
+    r of it in row order[r] of the array (``factor_core``); it
     is first brought to the free set of alpha (members no longer free deleted, free
     variables not yet members appended), and is left on the set the steps end on.
 
@@ -161,13 +153,13 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
         if 0.0 < alpha[i] < upper[i]:
             in_S[i] = True
         else:
-            _delete(L, m, members, r, u)
+            _delete(L, order, m, members, r, u)
             m -= 1
     for t in range(n):
         if 0.0 < alpha[t] < upper[t] and not in_S[t]:
             if m >= capacity:
                 return HAND_BACK, 0, counts[0], -1
-            added = _add(L, m, members, t, _row(t, X, gamma, rows, slot_of, owner, stamp,
+            added = _add(L, order, m, members, t, _row(t, X, gamma, rows, slot_of, owner, stamp,
                                                 clock, partial, act, counts), dense, wide)
             if added == NEITHER:
                 return HAND_BACK, 0, counts[0], -1
@@ -208,7 +200,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
         if not dense:
             for r in range(m):
                 work[r] = FS[members[r]]
-            _solve(L, m, work, u, v)
+            _solve(L, order, m, work, u, v)
             b = (u[:m].sum() + excess) / v[:m].sum()
             for r in range(m):
                 change[r] = u[r] - b * v[r]                 # d, the change of beta_S
@@ -224,7 +216,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
                 excess_d = excess
                 for r in range(m):
                     excess_d += change[r]           # 1'd + e, zero when solved exactly
-                _solve(L, m, work, u, v)            # u = K_SS^-1 (residual)
+                _solve(L, order, m, work, u, v)            # u = K_SS^-1 (residual)
                 shift = (u[:m].sum() + excess_d) / v[:m].sum()
                 for r in range(m):
                     change[r] += u[r] - shift * v[r]
@@ -295,7 +287,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
             for r in range(m - 1, -1, -1):
                 if work[r] == 1.0:
                     in_S[members[r]] = False
-                    _remove(L, m, members, r, u, dense)
+                    _remove(L, order, m, members, r, u, dense)
                     m -= 1
             short = short + 1 if t_max < short_t else 0
             if not patient and short >= (short_steps if m + hits <= wide else 1):
@@ -349,7 +341,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, members, m, limit, patient, far,
             fresh[j] = True
             if m >= capacity:
                 return HAND_BACK, steps, counts[0], -1
-            added = _add(L, m, members, j, _row(j, X, gamma, rows, slot_of, owner, stamp,
+            added = _add(L, order, m, members, j, _row(j, X, gamma, rows, slot_of, owner, stamp,
                                                 clock, partial, act, counts), dense, wide)
             if added == NEITHER:
                 return HAND_BACK, steps, counts[0], -1

@@ -26,10 +26,12 @@ SPARE = 64             # cache rows beyond the factor's members, for the rows a 
 
 
 class KeptFactor:
-    """L with K_SS = LL' on members[:m] (m = -1: nothing kept), room for ``room`` members."""
+    """L with K_SS = LL' on members[:m] (m = -1: nothing kept), row r of L in row
+    order[r] of the array, room for ``room`` members."""
 
     def __init__(self, room: int):
         self.L = np.empty((room, room))
+        self.order = np.arange(room)            # row r of L in row order[r] of the array
         self.members = np.zeros(room, dtype=np.int64)
         self.m = -1
 
@@ -74,8 +76,8 @@ def face_steps(columns, y, upper, alpha, F, limit, patient, far, settings, room)
         if fresh and not _refactor(kept, columns, free):
             return face_core.HAND_BACK, taken
         status, steps, rows, kept.m = face_core.face_steps(
-            columns.X, columns.rbf_gamma, y, upper, alpha, F, kept.L, kept.members, kept.m,
-            int(limit) - taken, bool(patient), -1 if far is None else int(far), *settings,
+            columns.X, columns.rbf_gamma, y, upper, alpha, F, kept.L, kept.order, kept.members,
+            kept.m, int(limit) - taken, bool(patient), -1 if far is None else int(far), *settings,
             columns.store, columns.slot, columns.owner, columns.stamp)
         columns.clock = max(columns.clock, int(columns.stamp.max()))
         columns.computed += int(rows) * len(y)
@@ -99,6 +101,7 @@ def _refactor(kept, columns, free) -> bool:
     k = len(free)
     try:
         kept.L[:k, :k] = sla.cholesky(columns.block(free), lower=True, check_finite=False)
+        kept.order[:] = np.arange(len(kept.order))
     except np.linalg.LinAlgError:
         kept.m = -1
         return False

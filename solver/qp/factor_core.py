@@ -2,8 +2,11 @@
 
 A variable joining S appends a row to L (one triangular solve); one leaving it is
 deleted (its row goes, and the block below is repaired by a rank-one update); a
-solve reads L by rows, forward then backward.  Each costs O(|S|^2), where a fresh
-factor costs |S|^3 / 3.  The face steps (``face_core``) use them, and the dense LU
+solve reads L by order, forward then backward.  Each costs O(|S|^2), where a fresh
+factor costs |S|^3 / 3.  Rows stay where they are: ``order[r]`` is the row of the
+array holding row r of L (order[m:] the free ones), so a deletion moves row numbers,
+not the order themselves (moving them was two thirds of its cost: at 1,600 members,
+deleting the 900th copied 700 x 900 entries to repair a 700 x 700 / 2 block).  The face steps (``face_core``) use them, and the dense LU
 solve below when K_SS is too near singular for a factor.
 """
 
@@ -19,68 +22,85 @@ PIVOT = 1e-15                            # smallest squared diagonal of L (k_ii 
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
-def _append(L, m, members, j, row_j):
+def _append(L, order, m, members, j, row_j):
     """Add variable j (its kernel row row_j) to the factor K_SS = LL'; False when K_SS
     and j are too near singular for one."""
+    new = L[order[m]]
     for r in range(m):                      # L w = K_Sj: w is the new row of L
+        row = L[order[r]]
         s = 0.0
         for c in range(r):
-            s += L[r, c] * L[m, c]
-        L[m, r] = (row_j[members[r]] - s) / L[r, r]
+            s += row[c] * new[c]
+        new[r] = (row_j[members[r]] - s) / row[r]
     diagonal = 1.0                          # k_jj = 1 for the RBF kernel
     for c in range(m):
-        diagonal -= L[m, c] * L[m, c]
+        diagonal -= new[c] * new[c]
     if diagonal <= PIVOT:
         return False
-    L[m, m] = math.sqrt(diagonal)
+    new[m] = math.sqrt(diagonal)
     members[m] = j
     return True
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
-def _delete(L, m, members, p, x):
+def _delete(L, order, m, members, p, x):
     """Remove the variable at position p from the factor K_SS = LL' (m members): its row
-    goes, the rows below move up a place, and the block they leave is repaired by a
-    rank-one update with the column of L it loses (moved and updated in one pass, by
-    columns: each column is read before the one left of it is written).  x: scratch."""
+    is given up, the order below take the row numbers above them, and the block they
+    leave is repaired by a rank-one update with the column of L it loses (each row's
+    columns from p on move left a place as they are updated, by columns: each column
+    is read before the one left of it is written).  x: scratch."""
     tail = m - 1 - p
     for k in range(tail):
-        x[k] = L[p + 1 + k, p]
+        x[k] = L[order[p + 1 + k], p]
+    given_up = order[p]
     for r in range(p + 1, m):
-        for c in range(p):
-            L[r - 1, c] = L[r, c]
+        order[r - 1] = order[r]
         members[r - 1] = members[r]
+    order[m - 1] = given_up
     # B B' + x x' = B~ B~' for the block B at (p + 1, p + 1), B~ written at (p, p)
     for k in range(tail):
-        diag = L[p + 1 + k, p + 1 + k]
+        diag = L[order[p + k], p + 1 + k]
         radius = math.sqrt(diag * diag + x[k] * x[k])
         c, s = radius / diag, x[k] / diag
         inverse = 1.0 / c
-        L[p + k, p + k] = radius
+        L[order[p + k], p + k] = radius
         for i in range(k + 1, tail):
-            value = (L[p + 1 + i, p + 1 + k] + s * x[i]) * inverse
-            L[p + i, p + k] = value
+            row = order[p + i]
+            value = (L[row, p + 1 + k] + s * x[i]) * inverse
+            L[row, p + k] = value
             x[i] = c * x[i] - s * value
 
 
+@nb.njit(cache=True, nogil=True)
+def _remove(L, order, m, members, p, x, dense):
+    """_delete, or, dense (no factor is kept), the member at p taken out of members."""
+    if dense:
+        for r in range(p + 1, m):
+            members[r - 1] = members[r]
+    else:
+        _delete(L, order, m, members, p, x)
+
+
 @nb.njit(cache=True, nogil=True, fastmath=True)
-def _solve(L, m, rhs, u, v):
+def _solve(L, order, m, rhs, u, v):
     """u = K_SS^-1 rhs and v = K_SS^-1 1 by the factor K_SS = LL' (forward, then
-    backward; both read L by rows)."""
+    backward; both read L by order)."""
     for r in range(m):
+        row = L[order[r]]
         s, t = 0.0, 0.0
         for c in range(r):
-            s += L[r, c] * u[c]
-            t += L[r, c] * v[c]
-        u[r] = (rhs[r] - s) / L[r, r]
-        v[r] = (1.0 - t) / L[r, r]
+            s += row[c] * u[c]
+            t += row[c] * v[c]
+        u[r] = (rhs[r] - s) / row[r]
+        v[r] = (1.0 - t) / row[r]
     for r in range(m - 1, -1, -1):
-        u[r] /= L[r, r]
-        v[r] /= L[r, r]
+        row = L[order[r]]
+        u[r] /= row[r]
+        v[r] /= row[r]
         a, b = u[r], v[r]
         for c in range(r):
-            u[c] -= L[r, c] * a
-            v[c] -= L[r, c] * b
+            u[c] -= row[c] * a
+            v[c] -= row[c] * b
 
 
 @nb.njit(cache=True, nogil=True)

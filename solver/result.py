@@ -190,9 +190,8 @@ class FitResult:
 
     @property
     def training_error(self) -> float:
-        """Fraction of points ``predict`` gets wrong: f = 0 counts as +1, so a -1 point
-        on the boundary is an error, as it is in held-out and cross-validated errors."""
-        return float(np.mean(np.where(self.decision >= 0, 1, -1) != self.y))
+        """Fraction of points on the wrong side of the boundary."""
+        return float(np.mean(self.functional_margin < 0))
 
     def count(self, status: str) -> int:
         return int(np.count_nonzero(self.status == status))

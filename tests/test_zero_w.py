@@ -128,11 +128,3 @@ def test_no_distance_to_no_boundary_in_scores_exports_and_stored_figures():
     stored = Classifier.from_figures(result.to_dict(), gauge.X)
     assert np.allclose(score(stored, new, gauge.label_mapping).distance,
                        np.abs(result.decision_function(new)) / result.weight_norm)
-
-
-def test_the_training_error_counts_f_zero_as_predict_does():
-    # the exact cross ends with b = 0, so f = 0 at every point: predict says +1 there
-    # (f >= 0), so its two -1 points are wrong; the training error read 0% (y f < 0 only)
-    result = fit(CROSS_X, CROSS_Y, FitConfig(C=1.0))
-    assert result.training_error == np.mean(result.predict(CROSS_X) != CROSS_Y)
-    assert np.all(result.decision == 0.0) and result.training_error == 0.5

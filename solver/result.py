@@ -190,7 +190,9 @@ class FitResult:
 
     @property
     def training_error(self) -> float:
-        """Fraction of points on the wrong side of the boundary."""
+        """Fraction of points on the wrong side of the boundary (y f < 0), the share of
+        those whose status is misclassified.  A point exactly on it (f = 0, which only
+        exactly symmetric data gives) is not counted, though predict calls it +1."""
         return float(np.mean(self.functional_margin < 0))
 
     def count(self, status: str) -> int:

@@ -128,3 +128,11 @@ def test_no_distance_to_no_boundary_in_scores_exports_and_stored_figures():
     stored = Classifier.from_figures(result.to_dict(), gauge.X)
     assert np.allclose(score(stored, new, gauge.label_mapping).distance,
                        np.abs(result.decision_function(new)) / result.weight_norm)
+
+
+def test_the_training_error_is_the_share_of_misclassified_points_also_on_the_boundary():
+    # the exact cross ends with b = 0, so f = 0 at every point: on the boundary, each
+    # is "inside" the margin, not misclassified, and the training error agrees (0%)
+    result = fit(CROSS_X, CROSS_Y, FitConfig(C=1.0))
+    assert np.all(result.decision == 0.0)
+    assert result.training_error == result.count("misclassified") / 4 == 0.0

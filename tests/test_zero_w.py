@@ -136,3 +136,15 @@ def test_the_training_error_is_the_share_of_misclassified_points_also_on_the_bou
     result = fit(CROSS_X, CROSS_Y, FitConfig(C=1.0))
     assert np.all(result.decision == 0.0)
     assert result.training_error == result.count("misclassified") / 4 == 0.0
+
+
+def test_before_any_fit_the_legend_lists_no_line(window, qtbot):
+    from test_gui_fixtures import settle
+    load_points(window, qtbot, gauge_points())
+    items = window.canvas.scene_items
+    assert any(sample.item is items.boundary for sample, _ in items.legend.items)
+    window.document.load(Dataset.from_points(np.zeros((0, 2)), np.zeros(0, dtype=int)))
+    settle(window, qtbot)
+    assert window.document.result is None
+    assert not any(sample.item is part for sample, _ in items.legend.items
+                   for part in (items.boundary, items.band, items.weight, items.slack))

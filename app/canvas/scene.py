@@ -150,6 +150,7 @@ class SceneItems:
             self.arrow.hide()
             self._arrow_tip = None
             self.scale_note.update(None, None)
+            self._legend_lists_fit(None)
             return
         matches = len(result.y) == len(X) and np.array_equal(result.X, X)
         shape = self._draw_field(result, rect)
@@ -165,10 +166,11 @@ class SceneItems:
 
     def _legend_lists_fit(self, result):
         """The legend lists what the fit draws: no w for a kernel fit, and no boundary,
-        band, w or slack when w = 0 (to rounding), which has no line to draw."""
+        band, w or slack when w = 0 (to rounding), which has no line to draw, nor before
+        there is a fit (``result`` None)."""
         if self.legend is None:
             return
-        no_line = result.w is not None and result.w_is_zero
+        no_line = result is None or (result.w is not None and result.w_is_zero)
         drawn = [] if no_line else [self.boundary, self.band] + (
             [self.weight] if result.w is not None else []) + [self.slack]
         parts = (self.boundary, self.band, self.weight, self.slack, self.ghost_boundary)

@@ -185,11 +185,11 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
     fresh = np.zeros(n, dtype=nb.boolean)   # released at the last one
     bounced = 0
     steps, short = 0, 0
-    for _ in range(limit):
+    status = STOPPED                 # unless a break below says otherwise; returns after
+    for _ in range(limit):           # the release check find F up to date already
         if m == 0:
-            _catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner, stamp,
-                      clock, partial, act, counts)
-            return HAND_BACK, steps, counts[0], -1
+            status = HAND_BACK
+            break
         steps += 1
         excess = 0.0
         for t in range(n):
@@ -228,17 +228,15 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                     break
             if not solved:
                 if m > wide:
-                    _catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner,
-                              stamp, clock, partial, act, counts)
-                    return HAND_BACK, steps, counts[0], -1
+                    status = HAND_BACK
+                    break
                 dense = True
         if dense:
             solved, b = _dense_solve(X, gamma, FS, members, m, excess, change, rows, slot_of,
                                      owner, stamp, clock, partial, act, counts)
             if not solved:          # (its residual is not checked: the fit is judged
-                _catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner,
-                          stamp, clock, partial, act, counts)
-                return HAND_BACK, steps, counts[0], -1   # on F computed afresh at the end)
+                status = HAND_BACK  # on F computed afresh at the end)
+                break
         # the step to the box, as face_system.step_in_box
         t_max = 1.0
         for r in range(m):
@@ -291,9 +289,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                     m -= 1
             short = short + 1 if t_max < short_t else 0
             if not patient and short >= (short_steps if m + hits <= wide else 1):
-                _catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner,
-                          stamp, clock, partial, act, counts)
-                return STOPPED, steps, counts[0], -1 if dense else m
+                break
             continue
         # every free variable is where the face puts it: F on every point, then release
         # the worst on the wrong side
@@ -351,7 +347,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
             m += 1
     _catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner, stamp, clock,
               partial, act, counts)
-    return STOPPED, steps, counts[0], -1 if dense else m
+    return status, steps, counts[0], -1 if dense or status == HAND_BACK else m
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)

@@ -142,7 +142,7 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
             # took 1.3 s; n = 1,000, 40 cells: 584 ms -> 573 ms in all, when it also
             # serves at most 200 free); no Python steps when they hand back
             finished = True
-            _finish(columns, y, upper, alpha, F, LONG_STEPS, tally, True, python=False)
+            _finish(columns, y, upper, alpha, F, LONG_STEPS, tally, patient=True, python=False)
         else:
             finished = free <= WIDE_FACE or _wrong_side(alpha, F, y, upper) <= FAR
             if finished:

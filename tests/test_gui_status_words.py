@@ -34,3 +34,26 @@ def test_the_scaling_menu_names_each_method_in_words(window, qtbot):
     assert window.document.config.scaling == "zscore"
     assert combo.currentText() == "z-score"
     assert "z-score: each feature shifted" in combo.toolTip()
+
+
+def _class_words(window):
+    scene = window.canvas.scene_items
+    legend = [scene.legend.getLabel(scene.legend_class[s]).text for s in (1, -1)]
+    controls = window.controls
+    buttons = [controls.add_positive.text(), controls.add_negative.text()]
+    weights = [controls.weight_form.labelForField(box).text()
+               for box in (controls.weight_positive, controls.weight_negative)]
+    return legend, buttons, weights
+
+
+def test_a_class_named_by_its_code_shows_the_code_once(window, qtbot):
+    # a new document's classes are called +1 and -1: "+1 (+1)" said it twice
+    legend, buttons, weights = _class_words(window)
+    assert legend == buttons == weights == ["+1", "\u22121"]
+
+
+def test_a_named_class_shows_its_name_and_code(window, qtbot):
+    load_points(window, qtbot, gauge_points())
+    legend, buttons, weights = _class_words(window)
+    assert legend == ["pass  (+1)", "reject  (\u22121)"]
+    assert buttons == weights == ["pass (+1)", "reject (\u22121)"]

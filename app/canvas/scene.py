@@ -12,6 +12,7 @@ import pyqtgraph as pg
 from PySide6.QtCore import QRectF, Qt
 
 from app.canvas import geometry
+from app.document.class_words import caption
 from app.canvas.scale_note import ScaleNote
 from app.canvas.palette import class_colour, class_symbol, palette
 
@@ -119,8 +120,8 @@ class SceneItems:
     def set_class_names(self, positive: str, negative: str):
         if self.legend is None:
             return
-        for sign, text, code in ((1, positive, "+1"), (-1, negative, "\u22121")):
-            self.legend.getLabel(self.legend_class[sign]).setText(f"{text}  ({code})")
+        for sign, text in ((1, positive), (-1, negative)):
+            self.legend.getLabel(self.legend_class[sign]).setText(caption(text, sign, gap="  "))
 
     # -- points ------------------------------------------------------------
     # every marker carries its point's index as item data, so pyqtgraph's own

@@ -14,6 +14,7 @@ from solver import kernels, scaling
 from solver import InputError
 from solver import PARAMETERS
 
+from app.document.class_words import caption
 from app.document.document import CONFIG, METADATA, POINTS
 from app.panels.path_ticks import TickedSlider
 
@@ -250,9 +251,9 @@ class Controls(QWidget):
             self._updating = False
 
     def _show_class_names(self):
-        positive = str(self.document.label_for(1))
-        negative = str(self.document.label_for(-1))
-        self.add_positive.setText(f"{positive} (+1)")
-        self.add_negative.setText(f"{negative} (\u22121)")
-        self.weight_form.labelForField(self.weight_positive).setText(f"{positive} (+1)")
-        self.weight_form.labelForField(self.weight_negative).setText(f"{negative} (\u22121)")
+        positive = caption(self.document.label_for(1), 1)
+        negative = caption(self.document.label_for(-1), -1)
+        self.add_positive.setText(positive)
+        self.add_negative.setText(negative)
+        self.weight_form.labelForField(self.weight_positive).setText(positive)
+        self.weight_form.labelForField(self.weight_negative).setText(negative)

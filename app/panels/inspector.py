@@ -6,6 +6,7 @@ from PySide6.QtWidgets import QFormLayout, QLabel, QWidget
 
 from solver import INSIDE, MISCLASSIFIED, ON_MARGIN, OUTSIDE, STATUS_TEXT
 
+from app.document.class_words import caption
 from app.document.document import METADATA, POINTS, RESULT, SELECTION
 from app.panels.units import length_suffix
 
@@ -73,7 +74,7 @@ class Inspector(QWidget):
         x, y = doc.X[i]
         self.values["index"].setText(f"#{i}")
         self.values["coordinates"].setText(f"({_g(x)}, {_g(y)})")
-        self.values["label"].setText(f"{doc.labels[i]} ({int(doc.y[i]):+d})")
+        self.values["label"].setText(caption(doc.labels[i], int(doc.y[i])))
         result = doc.result
         if result is None or len(result.y) != len(doc.X) or not (result.X[i] == doc.X[i]).all():
             self.reading.setText("no fit for the current points yet")

@@ -51,21 +51,40 @@ def test_a_deleted_variable_leaves_the_factor_of_the_others(position):
     np.testing.assert_allclose(low @ low.T, K[np.ix_(kept, kept)], atol=1e-13)
 
 
-def test_an_appended_variable_extends_the_factor_and_a_near_copy_is_refused():
+def test_an_appended_variable_extends_the_factor_of_the_ridged_kernel():
     rng = np.random.default_rng(5)
     X = rng.normal(size=(13, 2))
-    K = _gaussian(X, X, 2.0)
+    K = _gaussian(X, X, 2.0) + factor_core.RIDGE * np.eye(13)     # the factor is of K + mu I
     L, order, members = _factor(K[:12, :12], 16), np.arange(16), np.arange(16)
-    assert factor_core._append(L, order, 12, members, 12, K[12])
+    assert factor_core._append(L, order, 12, members, 12, K[12] - factor_core.RIDGE * np.eye(13)[12])
     low = _logical(L, order, 13)
     np.testing.assert_allclose(low @ low.T, K, atol=1e-13)
-    # a point 1e-9 from another: k is 1 - 2e-18 away from the copy's row, K_SS singular
-    X[12] = X[3] + 1e-9
-    near = _gaussian(X, X, 2.0)[12]
-    assert not factor_core._append(L, order, 12, members, 12, near)
-    assert face_core._add(L, order, 12, members, 12, near, False, 16) == face_core.DENSE
+
+
+def test_a_copy_of_a_member_is_taken_with_a_pivot_of_twice_the_ridge():
+    # K_SS with two equal rows is singular; K_SS + mu I is not.  Derivation: the new row
+    # of L is w = L^-1 K_S3 = L^-1 ((K + mu I)_S3 - mu e_3) = L[3]' - mu L^-1 e_3, and
+    # L[3] L^-1 e_3 = 1, so |w|^2 = 1 + mu - 2 mu + O(mu^2) and the new diagonal entry
+    # of L squared is 1 + mu - |w|^2 = 2 mu
+    rng = np.random.default_rng(5)
+    X = rng.normal(size=(13, 2))
+    X[12] = X[3]
+    K = _gaussian(X, X, 2.0)
+    ridged = K + factor_core.RIDGE * np.eye(13)
+    L, order, members = _factor(ridged[:12, :12], 16), np.arange(16), np.arange(16)
+    assert factor_core._append(L, order, 12, members, 12, K[12])
+    low = _logical(L, order, 13)
+    assert low[12, 12] ** 2 == pytest.approx(2 * factor_core.RIDGE, rel=1e-3)
+    np.testing.assert_allclose(low @ low.T, ridged, atol=1e-13)
+
+
+def test_without_a_factor_members_are_added_up_to_the_dense_limit():
+    members = np.arange(16)
+    L, order = np.zeros((16, 16)), np.arange(16)
+    row = np.ones(16)
+    assert face_core._add(L, order, 12, members, 12, row, True, 16) == face_core.DENSE
     assert members[12] == 12
-    assert face_core._add(L, order, 12, members, 12, near, False, 12) == face_core.NEITHER
+    assert face_core._add(L, order, 12, members, 12, row, True, 12) == face_core.NEITHER
 
 
 def _spy(monkeypatch):
@@ -243,3 +262,35 @@ def test_a_stage_finishes_with_long_compiled_steps_alone(monkeypatch):
     found = smo.solve_rbf(X, y, np.ones(400), 10.0, 5e-9, stages=1)
     assert calls == [(smo.LONG_STEPS, False)] and found.optimal
     _reference_check(X, y, SimpleNamespace(alpha=found.alpha, b=found.b), 1.0, 10.0)
+
+
+@pytest.mark.parametrize("gamma, C", [(2.0, 10.0), (0.5, 100.0)])
+def test_rounded_readings_end_in_the_ridged_finish_at_the_reference_optimum(monkeypatch,
+                                                                            gamma, C):
+    # readings rounded to 0.1: 600 points, 141 of them copies of another, so K_SS on the
+    # free set is singular; the ridged factor takes it, and the copies' weight is gathered
+    # at the bounds (without that, both cells report alphas whose y'a is off by 5e-7)
+    X, y = _blobs(600)
+    X = np.round(X, 1)
+    assert len(np.unique(X, axis=0)) < 500
+    kernel_cache.RECENT.clear()
+    calls = _spy(monkeypatch)
+    result = fit(X, y, FitConfig(C=C, kernel="rbf", gamma=gamma))
+    assert calls and calls[-1][0] == face_core.DONE and result.rounds == 1
+    assert abs(float(result.alpha @ y)) <= 1e-9 * C
+    _reference_check(X, y, result, C, gamma)
+
+
+def test_gathered_copies_keep_f_and_the_objective_with_one_free_per_group():
+    # derivation: copies share their row of Q, so only the group's sum enters f and D;
+    # 0.7 + 0.9 of C = 1 becomes 1 + 0.6, and a lone free variable stays as it is
+    from solver.qp.copies import gathered
+    X = np.array([[0.0, 0.0], [0.0, 0.0], [1.0, 0.0], [0.0, 0.0], [2.0, 2.0]])
+    y = np.array([1.0, 1.0, -1.0, -1.0, 1.0])
+    upper = np.ones(5)
+    alpha = np.array([0.7, 0.9, 0.5, 0.3, 0.4])
+    out = gathered(X, y, alpha, upper)
+    np.testing.assert_allclose(out, [1.0, 0.6, 0.5, 0.3, 0.4], atol=1e-15)  # 3: other label
+    K = _gaussian(X, X, 1.0)
+    np.testing.assert_allclose(K @ (out * y), K @ (alpha * y), atol=1e-15)
+    assert out @ y == pytest.approx(alpha @ y, abs=1e-15)

@@ -20,9 +20,11 @@ their bound, fewer are released at the next check (half, down to one; back up
 when none does).  Released together, variables at a nearly degenerate face
 can push each other out again and again (n = 5,000 moons, gamma 50, C 100:
 400 steps without an end from 11 on the wrong side; 42 steps so).
-A wide kernel makes K_SS nearly singular: each solve is checked on rows
-spread over S and, when one is off, refined on the whole residual; when that
-fails, or a released variable's diagonal vanishes, the factor is given up
+The factor is of K_SS + mu I (``factor_core.RIDGE``, which says why), and
+the steps solve that system exactly: F_S follows K_SS (t d) = t (F_S - b - mu d).
+Each solve is checked on rows spread over S and, when one is off, refined on
+the whole residual; when that fails, or a released variable's diagonal
+vanishes, the factor is given up
 and each later step solves the bordered system [K_SS 1; 1' 0] afresh by LU
 (up to ``wide`` free variables, as the Python steps' Bunch-Kaufman fallback).
 Past that the steps hand back, and the Python steps go on from the same alpha
@@ -35,7 +37,7 @@ from __future__ import annotations
 import numba as nb
 import numpy as np
 
-from solver.qp.factor_core import _append, _delete, _lu_solve, _remove, _solve
+from solver.qp.factor_core import RIDGE, _append, _delete, _lu_solve, _remove, _solve
 from solver.qp.smo_core import _slot
 
 DONE, STOPPED, HAND_BACK = 1, 0, -1      # what face_steps returns first
@@ -100,10 +102,11 @@ def _take_largest(values):
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
-def _solved(X, gamma, F, members, m, d, b, tolerance, checked, residual, rows, slot_of,
-            owner, stamp, clock, partial, act, counts):
-    """Whether |K_SS d + b - F_S| <= tolerance on ``checked`` rows spread over S (all of
-    them when checked >= m); residual[:m] = F_S - K_SS d - b where computed."""
+def _solved(X, gamma, F, members, m, d, b, ridge, tolerance, checked, residual, rows,
+            slot_of, owner, stamp, clock, partial, act, counts):
+    """Whether |(K_SS + ridge I) d + b - F_S| <= tolerance on ``checked`` rows spread over
+    S (all of them when checked >= m); residual[:m] = F_S - (K_SS + ridge I) d - b where
+    computed."""
     checked = min(checked, m)
     ok = True
     for k in range(checked):
@@ -113,7 +116,7 @@ def _solved(X, gamma, F, members, m, d, b, tolerance, checked, residual, rows, s
         s = 0.0
         for c in range(m):
             s += row[members[c]] * d[c]
-        residual[r] = F[members[r]] - b - s
+        residual[r] = F[members[r]] - b - s - ridge * d[r]
         if not abs(residual[r]) <= tolerance:
             ok = False
     return ok
@@ -206,11 +209,11 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                 change[r] = u[r] - b * v[r]                 # d, the change of beta_S
             # a factor of a nearly singular K_SS (a wide kernel) solves poorly: check rows
             # spread over S, and when one is off, refine on the whole residual
-            solved = _solved(X, gamma, FS, members, m, change, b, RESIDUAL * largest,
+            solved = _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest,
                              min(CHECKED, m), work, rows, slot_of, owner, stamp, clock,
                              partial, act, counts)
             if not solved:              # the whole residual, which the refinement solves
-                _solved(X, gamma, FS, members, m, change, b, RESIDUAL * largest, m, work,
+                _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest, m, work,
                         rows, slot_of, owner, stamp, clock, partial, act, counts)
             for _ in range(REFINE if not solved else 0):
                 excess_d = excess
@@ -221,7 +224,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                 for r in range(m):
                     change[r] += u[r] - shift * v[r]
                 b += shift
-                solved = _solved(X, gamma, FS, members, m, change, b, RESIDUAL * largest, m,
+                solved = _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest, m,
                                  work, rows, slot_of, owner, stamp, clock, partial, act,
                                  counts)
                 if solved:
@@ -280,7 +283,8 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                     waiting += 1
                 pending[i] += change[r]
         if t_max < 1.0:
-            _follow(FS, members, m, work, change, solution, t_max, b, X, gamma, rows,
+            _follow(FS, members, m, work, change, solution, t_max, b, 0.0 if dense else RIDGE,
+                    X, gamma, rows,
                     slot_of, owner, stamp, clock, partial, act, counts)
             for r in range(m - 1, -1, -1):
                 if work[r] == 1.0:
@@ -351,15 +355,16 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
-def _follow(FS, members, m, hit, change, solution, t, b, X, gamma, rows, slot_of, owner,
-            stamp, clock, partial, act, counts):
+def _follow(FS, members, m, hit, change, solution, t, b, ridge, X, gamma, rows, slot_of,
+            owner, stamp, clock, partial, act, counts):
     """F on the members that stay in S after a step of t along the face system's
-    solution (K_SS d + b 1 = F_S): K_SS (t d) = t (F_S - b), so F_S -= t (F_S - b),
+    solution ((K_SS + ridge I) d + b 1 = F_S): K_SS (t d) = t (F_S - b - ridge d), so
+    F_S -= t (F_S - b - ridge d),
     corrected by the rows of the members put on a bound off that line (``hit``)."""
     for r in range(m):
         if hit[r] == 0.0:
             i = members[r]
-            FS[i] -= t * (FS[i] - b)
+            FS[i] -= t * (FS[i] - b - ridge * solution[r])
     for r in range(m):
         if hit[r] == 1.0:
             off = change[r] - t * solution[r]

@@ -18,7 +18,7 @@ import numpy as np
 import scipy.linalg as sla
 
 from solver.qp import face_core
-from solver.qp.factor_core import PIVOT
+from solver.qp.factor_core import PIVOT, RIDGE
 
 REFACTOR = 48          # variables in one set and not the other, above which a fresh factor
 SPARE = 64             # cache rows beyond the factor's members, for the rows a step reads
@@ -91,6 +91,12 @@ def face_steps(columns, y, upper, alpha, F, limit, patient, far, settings, room)
             return face_core.HAND_BACK, taken
 
 
+def _ridged(block):
+    """K_SS + RIDGE I, in place: the matrix the kept factor is of (``face_core``)."""
+    block[np.diag_indices_from(block)] += RIDGE
+    return block
+
+
 def _changes(kept, free):
     members = np.sort(kept.members[:kept.m])
     return len(np.setdiff1d(members, free, assume_unique=True)) + \
@@ -100,7 +106,7 @@ def _changes(kept, free):
 def _refactor(kept, columns, free) -> bool:
     k = len(free)
     try:
-        kept.L[:k, :k] = sla.cholesky(columns.block(free), lower=True, check_finite=False)
+        kept.L[:k, :k] = sla.cholesky(_ridged(columns.block(free)), lower=True, check_finite=False)
         kept.order[:] = np.arange(len(kept.order))
     except np.linalg.LinAlgError:
         kept.m = -1

@@ -36,19 +36,48 @@ def test_a_deleted_variable_leaves_the_factor_of_the_others(position):
     X = rng.normal(size=(20, 2))
     K = _gaussian(X, X, 2.0)
     L, order, members = _factor(K, 24), np.arange(24), np.arange(24)
-    factor_core._delete(L, order, 20, members, position, np.empty(24))
+    f = rng.normal(size=20)
+    za, zb = np.zeros(24), np.zeros(24)
+    za[:20], zb[:20] = np.linalg.solve(np.linalg.cholesky(K), np.c_[f, np.ones(20)]).T
+    factor_core._delete(L, order, 20, members, position, np.empty(24), za, zb)
     kept = np.delete(np.arange(20), position)
     assert list(members[:19]) == list(kept)
     low = _logical(L, order, 19)
     np.testing.assert_allclose(low @ low.T, K[np.ix_(kept, kept)], atol=1e-13)
+    # the forward solutions carried along are those of the smaller factor: L~ z~ = f~
+    np.testing.assert_allclose(low @ za[:19], f[kept], atol=1e-10)
+    np.testing.assert_allclose(low @ zb[:19], np.ones(19), atol=1e-10)
     # a second deletion, then an append into the row the first gave up
-    factor_core._delete(L, order, 19, members, 3, np.empty(24))
+    factor_core._delete(L, order, 19, members, 3, np.empty(24), np.zeros(24), np.zeros(24))
     kept = np.delete(kept, 3)
     assert factor_core._append(L, order, 18, members, position, K[position])
     kept = np.r_[kept, position]
     assert list(members[:19]) == list(kept) and sorted(order) == list(range(24))
     low = _logical(L, order, 19)
     np.testing.assert_allclose(low @ low.T, K[np.ix_(kept, kept)], atol=1e-13)
+
+
+def test_the_kept_solve_and_step_match_the_face_system_written_out():
+    # the bordered system [K 1; 1' 0][d; b] = [f; -e] solved by numpy, against
+    # _kept_solve from z = L^-1 f and L^-1 1; then a step of t = 0.3 with member 4 hit
+    # (moved by 0.05 instead of t d_4): L^-1 of f - K (change of beta), written out
+    rng = np.random.default_rng(6)
+    X = rng.normal(size=(12, 2))
+    K = _gaussian(X, X, 2.0)
+    L, order = _factor(K, 16), np.arange(16)
+    f, e = rng.normal(size=12), 0.02
+    za, zb = np.zeros(16), np.zeros(16)
+    factor_core._forward(L, order, 12, f, za, zb)
+    d = np.zeros(16)
+    b = factor_core._kept_solve(L, order, 12, e, za, zb, d)
+    bordered = np.block([[K, np.ones((12, 1))], [np.ones((1, 12)), np.zeros((1, 1))]])
+    expected = np.linalg.solve(bordered, np.r_[f, -e])
+    np.testing.assert_allclose(np.r_[d[:12], b], expected, atol=1e-9)
+    hit, change = np.zeros(16), 0.3 * d
+    hit[4], change[4] = 1.0, 0.05
+    factor_core._kept_step(L, order, 12, za, zb, 0.3, b, hit, change, d)
+    np.testing.assert_allclose(np.tril(L[:12, :12]) @ za[:12], f - K @ change[:12],
+                               atol=1e-10)
 
 
 def test_an_appended_variable_extends_the_factor_of_the_ridged_kernel():

@@ -20,15 +20,15 @@ their bound, fewer are released at the next check (half, down to one; back up
 when none does).  Released together, variables at a nearly degenerate face
 can push each other out again and again (n = 5,000 moons, gamma 50, C 100:
 400 steps without an end from 11 on the wrong side; 42 steps so).
-The factor is of K_SS + mu I (``factor_core.RIDGE``, which says why), and
-the steps solve that system exactly: F_S follows K_SS (t d) = t (F_S - b - mu d).
-Each solve is checked on rows spread over S and, when one is off, refined on
-the whole residual; when that fails, or a released variable's diagonal
-vanishes, the factor is given up
-and each later step solves the bordered system [K_SS 1; 1' 0] afresh by LU
-(up to ``wide`` free variables, as the Python steps' Bunch-Kaufman fallback).
-Past that the steps hand back, and the Python steps go on from the same alpha
-and F.  Kernel rows are read from (and, when missing, computed into) a
+The factor is of K_SS + mu I (``factor_core.RIDGE``, which says why): F_S
+follows K_SS (t d) = t (F_S - b - mu d), and so do L^-1 F_S and L^-1 1, which
+make a step one pass over L (``factor_core._kept_solve``).  Each solve is
+checked on rows spread over S and, when one is off, made afresh, then refined
+on the whole residual; when that fails, or a released variable's diagonal
+vanishes, the factor is given up and each later step solves the bordered
+system [K_SS 1; 1' 0] by LU (up to ``wide`` free variables, as the Python
+steps' Bunch-Kaufman fallback).  Past that the steps hand back, and the Python
+steps go on from the same alpha and F.  Kernel rows come from a
 ``KernelColumns`` with a row per member of S and some to spare (``face_kept.room``).
 """
 
@@ -37,7 +37,8 @@ from __future__ import annotations
 import numba as nb
 import numpy as np
 
-from solver.qp.factor_core import RIDGE, _append, _delete, _lu_solve, _remove, _solve
+from solver.qp.factor_core import (RIDGE, _append, _delete, _forward, _kept_solve, _kept_step,
+                                  _lu_solve, _remove, _solve)
 from solver.qp.smo_core import _slot
 
 DONE, STOPPED, HAND_BACK = 1, 0, -1      # what face_steps returns first
@@ -149,6 +150,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
     u = np.empty(capacity)
     v = np.empty(capacity)
     change = np.empty(capacity)
+    zF, z1, z_kept = np.zeros(capacity), np.zeros(capacity), False   # L^-1 F_S, L^-1 1
     wrong = np.zeros(n)
     dense = False             # the factor was given up: each step solves afresh
     for r in range(m - 1, -1, -1):
@@ -156,7 +158,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
         if 0.0 < alpha[i] < upper[i]:
             in_S[i] = True
         else:
-            _delete(L, order, m, members, r, u)
+            _delete(L, order, m, members, r, u, zF, z1)
             m -= 1
     for t in range(n):
         if 0.0 < alpha[t] < upper[t] and not in_S[t]:
@@ -194,24 +196,25 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
             status = HAND_BACK
             break
         steps += 1
-        excess = 0.0
-        for t in range(n):
-            excess += alpha[t] * y[t]
+        excess = (alpha * y).sum()
         largest = 1.0
         for r in range(m):
             largest = max(largest, abs(FS[members[r]]))
         if not dense:
-            for r in range(m):
-                work[r] = FS[members[r]]
-            _solve(L, order, m, work, u, v)
-            b = (u[:m].sum() + excess) / v[:m].sum()
-            for r in range(m):
-                change[r] = u[r] - b * v[r]                 # d, the change of beta_S
-            # a factor of a nearly singular K_SS (a wide kernel) solves poorly: check rows
-            # spread over S, and when one is off, refine on the whole residual
-            solved = _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest,
-                             min(CHECKED, m), work, rows, slot_of, owner, stamp, clock,
-                             partial, act, counts)
+            for _ in range(2):
+                afresh = not z_kept
+                if afresh:
+                    for r in range(m):
+                        work[r] = FS[members[r]]
+                    _forward(L, order, m, work, zF, z1)
+                z_kept = True
+                b = _kept_solve(L, order, m, excess, zF, z1, change)   # change: d of beta_S
+                solved = _solved(X, gamma, FS, members, m, change, b, RIDGE,
+                                 RESIDUAL * largest, min(CHECKED, m), work, rows, slot_of,
+                                 owner, stamp, clock, partial, act, counts)
+                if solved or afresh:
+                    break
+                z_kept = False          # the kept z drifted from F_S: once more afresh
             if not solved:              # the whole residual, which the refinement solves
                 _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest, m, work,
                         rows, slot_of, owner, stamp, clock, partial, act, counts)
@@ -286,10 +289,12 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
             _follow(FS, members, m, work, change, solution, t_max, b, 0.0 if dense else RIDGE,
                     X, gamma, rows,
                     slot_of, owner, stamp, clock, partial, act, counts)
+            if not dense:
+                _kept_step(L, order, m, zF, z1, t_max, b, work, change, solution)
             for r in range(m - 1, -1, -1):
                 if work[r] == 1.0:
                     in_S[members[r]] = False
-                    _remove(L, order, m, members, r, u, dense)
+                    _remove(L, order, m, members, r, u, zF, z1, dense)
                     m -= 1
             short = short + 1 if t_max < short_t else 0
             if not patient and short >= (short_steps if m + hits <= wide else 1):
@@ -301,6 +306,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                   clock, partial, act, counts)
         waiting = 0
         drift = 0.0
+        z_kept = False
         for r in range(m):
             i = members[r]
             FS[i] = F[i]

@@ -57,15 +57,22 @@ def _append(L, order, m, members, j, row_j):
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
-def _delete(L, order, m, members, p, x):
+def _delete(L, order, m, members, p, x, za, zb):
     """Remove the variable at position p from the factor K_SS = LL' (m members): its row
     is given up, the order below take the row numbers above them, and the block they
     leave is repaired by a rank-one update with the column of L it loses (each row's
     columns from p on move left a place as they are updated, by columns: each column
-    is read before the one left of it is written).  x: scratch."""
+    is read before the one left of it is written).  x: scratch.
+
+    za and zb, forward solutions z = L^-1 f kept by the caller, become those of the
+    smaller factor (f without its entry p).  The update is a sequence of Givens
+    rotations on the column pairs (B[:, k], x), [B x] G = [B~ 0]; since
+    B z_tail + x z_p = [B x] [z_tail; z_p] = [B~ 0] G' [z_tail; z_p], the same
+    rotations turn (z_tail, z_p) into the new z_tail."""
     tail = m - 1 - p
     for k in range(tail):
         x[k] = L[order[p + 1 + k], p]
+    carried_a, carried_b = za[p], zb[p]        # the coefficients of x, rotated out
     given_up = order[p]
     for r in range(p + 1, m):
         order[r - 1] = order[r]
@@ -78,6 +85,12 @@ def _delete(L, order, m, members, p, x):
         c, s = radius / diag, x[k] / diag
         inverse = 1.0 / c
         L[order[p + k], p + k] = radius
+        cos, sin = diag / radius, x[k] / radius      # b~_k = cos b_k + sin x
+        a, b = za[p + 1 + k], zb[p + 1 + k]
+        za[p + k] = cos * a + sin * carried_a
+        zb[p + k] = cos * b + sin * carried_b
+        carried_a = cos * carried_a - sin * a
+        carried_b = cos * carried_b - sin * b
         for i in range(k + 1, tail):
             row = order[p + i]
             value = (L[row, p + 1 + k] + s * x[i]) * inverse
@@ -86,13 +99,37 @@ def _delete(L, order, m, members, p, x):
 
 
 @nb.njit(cache=True, nogil=True)
-def _remove(L, order, m, members, p, x, dense):
+def _remove(L, order, m, members, p, x, za, zb, dense):
     """_delete, or, dense (no factor is kept), the member at p taken out of members."""
     if dense:
         for r in range(p + 1, m):
             members[r - 1] = members[r]
     else:
-        _delete(L, order, m, members, p, x)
+        _delete(L, order, m, members, p, x, za, zb)
+
+
+@nb.njit(cache=True, nogil=True, fastmath=True)
+def _forward(L, order, m, rhs, za, zb):
+    """za = L^-1 rhs and zb = L^-1 1 (one pass over L, by order)."""
+    for r in range(m):
+        row = L[order[r]]
+        s, t = 0.0, 0.0
+        for c in range(r):
+            s += row[c] * za[c]
+            t += row[c] * zb[c]
+        za[r] = (rhs[r] - s) / row[r]
+        zb[r] = (1.0 - t) / row[r]
+
+
+@nb.njit(cache=True, nogil=True, fastmath=True)
+def _backward(L, order, m, w):
+    """w <- L'^-1 w (one pass over L, by order, last row first)."""
+    for r in range(m - 1, -1, -1):
+        row = L[order[r]]
+        w[r] /= row[r]
+        a = w[r]
+        for c in range(r):
+            w[c] -= row[c] * a
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
@@ -149,3 +186,38 @@ def _lu_solve(A, x):
         if not np.isfinite(x[r]):
             return False
     return True
+
+
+@nb.njit(cache=True, nogil=True, fastmath=True)
+def _kept_solve(L, order, m, excess, za, zb, d):
+    """b of the bordered face system, and d[:m], from forward solutions kept by the caller,
+    za = L^-1 F_S and zb = L^-1 1: with u = K_SS^-1 F_S = L'^-1 za and v = K_SS^-1 1 =
+    L'^-1 zb, 1'u = zb'za and 1'v = zb'zb, so b = (1'u + e) / 1'v needs no pass over
+    L, and d = u - b v = L'^-1 (za - b zb) one (where _solve takes two)."""
+    s, t = 0.0, 0.0
+    for r in range(m):
+        s += zb[r] * za[r]
+        t += zb[r] * zb[r]
+    b = (s + excess) / t
+    for r in range(m):
+        d[r] = za[r] - b * zb[r]
+    _backward(L, order, m, d)
+    return b
+
+
+@nb.njit(cache=True, nogil=True, fastmath=True)
+def _kept_step(L, order, m, za, zb, t, b, hit, change, solution):
+    """za = L^-1 F_S after a step of t along d, the members hit (hit[r] == 1) moved by
+    change[r] instead of t d_r: F_S -= t K_SS d + sum_h off_h K_Sh with off_h =
+    change_h - t d_h.  K_SS d = F_S - b 1 - mu d and L^-1 K_Sh = L[h]' - mu L^-1 e_h
+    (LL' = K_SS + mu I); the mu terms, at most mu |change of beta|, are left to the
+    caller's residual check, which makes za afresh when they add up."""
+    for r in range(m):
+        za[r] += t * (b * zb[r] - za[r])
+    for r in range(m):
+        if hit[r] == 1.0:
+            off = change[r] - t * solution[r]
+            if off != 0.0:
+                row = L[order[r]]
+                for c in range(r + 1):
+                    za[c] -= off * row[c]

@@ -37,6 +37,13 @@ def launch_window(argv) -> int:
     QCoreApplication.setOrganizationName("Slackline")
     QCoreApplication.setApplicationName("Slackline")
     app = QApplication.instance() or QApplication([sys.argv[0], *qt_args])
+    # Python's cyclic garbage collector runs in whichever thread allocates when its
+    # count is due, solver threads included, and a Qt object it frees there is
+    # destroyed off the GUI thread: seen as a deadlock (a solve thread in gc, waiting
+    # in ~QObject for the GIL the GUI thread needed).  pyqtgraph's collector turns
+    # automatic collection off and collects on a GUI-thread timer instead.
+    from pyqtgraph.util.garbage_collector import GarbageCollector
+    collector = GarbageCollector(interval=1.0)   # noqa: F841 (kept alive with the app)
     window = MainWindow()
     window.show()
     from app.window.warm_up_status import install_warm_up

@@ -11,7 +11,7 @@ import math
 
 import numpy as np
 import pytest
-from hypothesis import assume, given, settings, strategies as st
+from hypothesis import assume, example, given, settings, strategies as st
 from sklearn.datasets import make_blobs, make_moons
 from sklearn.metrics.pairwise import rbf_kernel
 from sklearn.svm import SVC
@@ -121,6 +121,7 @@ def test_rounded_readings_with_duplicates_reach_the_reference_optimum():
 @settings(max_examples=20, deadline=None)
 @given(seed=st.integers(0, 10_000), C=st.sampled_from([0.1, 1.0, 10.0]),
        pick=st.integers(0, 10_000))
+@example(seed=139, C=10.0, pick=0)          # libsvm's single-precision Q: 2e-6 above
 def test_removing_a_point_that_is_not_a_support_vector_changes_nothing(seed, C, pick):
     # alpha_i = 0: the point enters neither w nor an active constraint, so the
     # same (w, b) stays optimal without it (the KKT conditions are unchanged)
@@ -138,7 +139,12 @@ def test_removing_a_point_that_is_not_a_support_vector_changes_nothing(seed, C, 
     svc = SVC(kernel="linear", C=C, tol=1e-10).fit(X_out, y_out)
     w = svc.coef_[0]
     reference = 0.5 * w @ w + C * np.maximum(0.0, 1 - y_out * svc.decision_function(X_out)).sum()
-    assert reference == pytest.approx(result.primal_objective, rel=1e-6)
+    # libsvm keeps Q in single precision (svm.cpp: typedef float Qfloat), so its optimum
+    # can lie above the true one by a few 1e-6 (seed 139, C = 10: 2.0e-6 relative, where
+    # our primal equals our dual to 1e-11): ours is never above it, and within 1e-5
+    assert result.primal_objective <= reference * (1 + 1e-9)
+    assert result.primal_objective == pytest.approx(reference, rel=1e-5)
+    assert result.primal_objective - result.dual_objective <= 1e-8 * result.primal_objective
     np.testing.assert_allclose(w, result.w, atol=1e-4)
     if result.count("on_margin"):      # otherwise b is only fixed up to an interval
         assert svc.intercept_[0] == pytest.approx(result.b, abs=1e-4)

@@ -73,3 +73,23 @@ def test_fit_json_and_the_points_export_write_the_same_exact_alphas(tmp_path, ca
     rows = list(csv.DictReader(points.open()))
     exported = np.array([float(row["alpha"]) for row in rows])
     assert np.array_equal(exported, alpha)
+
+
+def test_a_kernel_fits_small_free_alphas_stay_in_its_model_and_its_alphas():
+    # C = 1e4, gamma 100 on standardised rings (scikit-learn's make_circles): many free
+    # support vectors carry alphas near 2e-6 C.  The kernel dual puts alphas exactly on
+    # their bounds, so these are free, not 0: f written out from the reported alphas,
+    # f(x) = sum_j alpha_j y_j exp(-gamma |x - x_j|^2) + b, and from the model must both
+    # be the fit's decision values (sqrt(gap) took them for 0: f off by 0.06)
+    from sklearn.datasets import make_circles
+    X, labels = make_circles(1000, noise=0.15, factor=0.5, random_state=0)
+    X = (X - X.mean(axis=0)) / X.std(axis=0)
+    y = np.where(labels == 1, 1, -1)
+    result = fit(X, y, FitConfig(C=1e4, kernel="rbf", gamma=100.0))
+    small = (result.alpha > 0) & (result.alpha < 1e-4 * 1e4)
+    assert small.any()
+    squared = ((X[:, None, :] - X[None, :, :]) ** 2).sum(axis=2)
+    written_out = np.exp(-100.0 * squared) @ (result.alpha * y) + result.b
+    np.testing.assert_allclose(written_out, result.decision, atol=1e-9)
+    np.testing.assert_allclose(result.decision_function(X), result.decision, atol=1e-9)
+    assert abs(float(result.alpha @ y)) <= 1e-9 * result.alpha.sum()

@@ -40,7 +40,7 @@ def result_from_alpha(path, C: float, alpha: np.ndarray, b: float, started: floa
     primal = 0.5 * quadratic + float(penalties @ slack)
     dual = float(alpha.sum()) - 0.5 * quadratic
     gap = abs(primal - dual) / max(1.0, abs(primal))
-    status, support = _classify(alpha, penalties, slack, margin, gap)
+    status, support = _classify(alpha, penalties, slack, margin, gap, exact=True)  # affine
     kkt = _kkt_residuals(alpha, penalties, y, margin, slack, status)
     return FitResult(config=config, X=path.X, y=path.y, alpha=alpha, penalties=penalties,
                      decision=decision, status=status, support=support, model=model,

@@ -138,6 +138,16 @@ def test_the_training_error_is_the_share_of_misclassified_points_also_on_the_bou
     assert result.training_error == result.count("misclassified") / 4 == 0.0
 
 
+def test_a_new_window_lists_no_line_in_its_legend(window, qtbot):
+    # an empty document has never had a fit: nothing is drawn, so nothing is listed
+    items = window.canvas.scene_items
+    assert window.document.result is None
+    assert not any(sample.item is part for sample, _ in items.legend.items
+                   for part in (items.boundary, items.band, items.weight, items.slack))
+    load_points(window, qtbot, gauge_points())
+    assert any(sample.item is items.boundary for sample, _ in items.legend.items)
+
+
 def test_before_any_fit_the_legend_lists_no_line(window, qtbot):
     from test_gui_fixtures import settle
     load_points(window, qtbot, gauge_points())

@@ -114,8 +114,8 @@ class SceneItems:
                                         pen=pg.mkPen(palette()["marker_outline"], width=1.0))
             self.legend_class[sign] = sample
             self.legend.addItem(sample, "+1" if sign > 0 else "-1")
-        for item in (self.rings, self.boundary, self.band, self.weight, self.slack):
-            self.legend.addItem(item, item.name())
+        # the fit's entries (boundary, band, w, slack) come with a fit: _legend_lists_fit
+        self.legend.addItem(self.rings, self.rings.name())
 
     def set_class_names(self, positive: str, negative: str):
         if self.legend is None:

@@ -323,3 +323,11 @@ def test_gathered_copies_keep_f_and_the_objective_with_one_free_per_group():
     K = _gaussian(X, X, 1.0)
     np.testing.assert_allclose(K @ (out * y), K @ (alpha * y), atol=1e-15)
     assert out @ y == pytest.approx(alpha @ y, abs=1e-15)
+
+
+def test_a_fresh_factor_takes_the_free_set_farthest_from_a_bound_first():
+    # alpha / C = 0.5, 0.05, 0.9, 0.3 -> distances to a bound 0.5, 0.05, 0.1, 0.3
+    alpha = np.array([0.0, 1.0, 0.1, 1.8, 0.6])
+    upper = np.full(5, 2.0)
+    order = face_kept._settled_first(np.array([1, 2, 3, 4]), alpha, upper)
+    assert list(order) == [1, 4, 3, 2]

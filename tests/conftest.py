@@ -1,5 +1,7 @@
+import faulthandler
 import gc
 import os
+import sys
 
 import pytest
 
@@ -24,3 +26,22 @@ def collect_garbage_on_the_main_thread():
 
 FULL_EVERY = 100
 _collections = [0]
+
+
+LAST_RESORT = 600      # seconds: twice pytest-timeout's, for a test it cannot end
+_terminal = [None]     # a copy of the terminal's stderr, which output capture leaves alone
+
+
+def pytest_configure(config):
+    # pytest suspends its capture between loading conftest files and running tests
+    _terminal[0] = os.dup(sys.__stderr__.fileno())
+
+
+@pytest.fixture(autouse=True)
+def end_the_run_if_a_test_hangs_for_good():
+    """pytest-timeout's thread needs the GIL, so a thread stuck holding it (the gc
+    deadlock above) hangs the run until CI gives up at 90 minutes.  faulthandler's
+    watchdog is a C thread: it prints every stack and ends the process."""
+    faulthandler.dump_traceback_later(LAST_RESORT, exit=True, file=_terminal[0])
+    yield
+    faulthandler.cancel_dump_traceback_later()

@@ -121,7 +121,8 @@ class SceneItems:
         if self.legend is None:
             return
         for sign, text in ((1, positive), (-1, negative)):
-            self.legend.getLabel(self.legend_class[sign]).setText(caption(text, sign, gap="  "))
+            label = self.legend.getLabel(self.legend_class[sign])
+            label.setText(caption(text, sign, gap="  "))
 
     # -- points ------------------------------------------------------------
     # every marker carries its point's index as item data, so pyqtgraph's own

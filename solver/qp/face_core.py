@@ -216,8 +216,8 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                     break
                 z_kept = False          # the kept z drifted from F_S: once more afresh
             if not solved:              # the whole residual, which the refinement solves
-                _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest, m, work,
-                        rows, slot_of, owner, stamp, clock, partial, act, counts)
+                _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest, m,
+                        work, rows, slot_of, owner, stamp, clock, partial, act, counts)
             for _ in range(REFINE if not solved else 0):
                 excess_d = excess
                 for r in range(m):
@@ -227,9 +227,9 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                 for r in range(m):
                     change[r] += u[r] - shift * v[r]
                 b += shift
-                solved = _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest, m,
-                                 work, rows, slot_of, owner, stamp, clock, partial, act,
-                                 counts)
+                solved = _solved(X, gamma, FS, members, m, change, b, RIDGE,
+                                 RESIDUAL * largest, m, work, rows, slot_of, owner, stamp,
+                                 clock, partial, act, counts)
                 if solved:
                     break
             if not solved:

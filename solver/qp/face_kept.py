@@ -116,7 +116,8 @@ def _changes(kept, free):
 def _refactor(kept, columns, free) -> bool:
     k = len(free)
     try:
-        kept.L[:k, :k] = sla.cholesky(_ridged(columns.block(free)), lower=True, check_finite=False)
+        kept.L[:k, :k] = sla.cholesky(_ridged(columns.block(free)), lower=True,
+                                      check_finite=False)
         kept.order[:] = np.arange(len(kept.order))
     except np.linalg.LinAlgError:
         kept.m = -1

@@ -136,14 +136,7 @@ def _backward(L, order, m, w):
 def _solve(L, order, m, rhs, u, v):
     """u = K_SS^-1 rhs and v = K_SS^-1 1 by the factor K_SS = LL' (forward, then
     backward; both read L by order)."""
-    for r in range(m):
-        row = L[order[r]]
-        s, t = 0.0, 0.0
-        for c in range(r):
-            s += row[c] * u[c]
-            t += row[c] * v[c]
-        u[r] = (rhs[r] - s) / row[r]
-        v[r] = (1.0 - t) / row[r]
+    _forward(L, order, m, rhs, u, v)
     for r in range(m - 1, -1, -1):
         row = L[order[r]]
         u[r] /= row[r]

@@ -14,15 +14,29 @@ not solve its face system well enough, a fresh factor is made.
 
 from __future__ import annotations
 
+import ctypes
+import weakref
+
 import numpy as np
-import scipy.linalg as sla
+from numba.extending import get_cython_function_address
 
 from solver.qp import face_core
-from solver.qp.factor_core import PIVOT, RIDGE
+from solver.qp.factor_core import PIVOT, gather_lower
+from solver.qp.kernel_cache import Buffers
 
 REFACTOR = 48          # variables in one set and not the other, above which a fresh factor
 SPARE = 64             # cache rows beyond the factor's members, for the rows a step reads
                        # besides theirs (released variables, the dense fallback's)
+
+
+FACTORS = Buffers()    # the factor's memory, from one fit to the next: at 1,899 free, writing
+                       # a fresh factor into new memory took 108 ms, into used memory 9 ms
+
+_INT = ctypes.POINTER(ctypes.c_int)
+# LAPACK's Cholesky factorisation, as scipy ships it for compiled callers: it factors the
+# kept array in place, rows of any stride (scipy.linalg.cholesky copies into fresh memory)
+_DPOTRF = ctypes.CFUNCTYPE(None, ctypes.c_char_p, _INT, ctypes.c_void_p, _INT, _INT)(
+    get_cython_function_address("scipy.linalg.cython_lapack", "dpotrf"))
 
 
 class KeptFactor:
@@ -30,7 +44,9 @@ class KeptFactor:
     order[r] of the array, room for ``room`` members."""
 
     def __init__(self, room: int):
-        self.L = np.empty((room, room))
+        buffer = FACTORS.take(room * room)
+        weakref.finalize(self, FACTORS.give_back, buffer)
+        self.L = buffer[:room * room].reshape(room, room)
         self.order = np.arange(room)            # row r of L in row order[r] of the array
         self.members = np.zeros(room, dtype=np.int64)
         self.m = -1
@@ -101,12 +117,6 @@ def _settled_first(free, alpha, upper):
     return free[np.argsort(-room, kind="stable")]
 
 
-def _ridged(block):
-    """K_SS + RIDGE I, in place: the matrix the kept factor is of (``face_core``)."""
-    block[np.diag_indices_from(block)] += RIDGE
-    return block
-
-
 def _changes(kept, free):
     members = np.sort(kept.members[:kept.m])
     return len(np.setdiff1d(members, free, assume_unique=True)) + \
@@ -114,17 +124,26 @@ def _changes(kept, free):
 
 
 def _refactor(kept, columns, free) -> bool:
+    """A fresh factor of K_SS + RIDGE I (the matrix the kept factor is of, ``face_core``)
+    on the set ``free``, in the order given, made in kept.L itself."""
     k = len(free)
-    try:
-        kept.L[:k, :k] = sla.cholesky(_ridged(columns.block(free)), lower=True,
-                                      check_finite=False)
-        kept.order[:] = np.arange(len(kept.order))
-    except np.linalg.LinAlgError:
-        kept.m = -1
-        return False
-    if not np.diagonal(kept.L)[:k].min() ** 2 > PIVOT:
+    kept.order[:] = np.arange(len(kept.order))
+    gather_lower(columns.store, columns.slots(free), free, kept.L)
+    if not _cholesky_in_place(kept.L, k) or not np.diagonal(kept.L)[:k].min() ** 2 > PIVOT:
         kept.m = -1
         return False
     kept.members[:k] = free
     kept.m = k
     return True
+
+
+def _cholesky_in_place(L, k) -> bool:
+    """L[:k, :k] = the lower Cholesky factor of the symmetric matrix whose lower triangle
+    it holds (L C-ordered: LAPACK, by columns, sees the upper triangle of the same
+    matrix, and its upper factor U, U'U = A, is our L' read by rows); False when the
+    matrix is not positive definite."""
+    assert L.flags.c_contiguous and L.dtype == np.float64 and k <= len(L)
+    info = ctypes.c_int(0)
+    _DPOTRF(b"U", ctypes.byref(ctypes.c_int(k)), L.ctypes.data,
+            ctypes.byref(ctypes.c_int(L.shape[1])), ctypes.byref(info))
+    return info.value == 0

@@ -34,8 +34,9 @@ MIN_CAPACITY = 64
 SMALL = 2**17               # entries (1 MiB) below which a buffer is not taken from the pool
 
 
-class _Buffers:
-    """Flat float64 buffers for kernel rows, kept from one cache to the next."""
+class Buffers:
+    """Flat float64 buffers kept from one fit to the next (kernel rows here, the face
+    steps' factor in ``face_kept``)."""
 
     def __init__(self):
         self._lock = threading.Lock()
@@ -64,7 +65,7 @@ class _Buffers:
             self._kept = None
 
 
-BUFFERS = _Buffers()
+BUFFERS = Buffers()
 
 
 class _Recent:
@@ -130,6 +131,11 @@ class KernelColumns:
     def rows(self, idx: np.ndarray) -> np.ndarray:
         """K[idx, :] (= K[:, idx]' by symmetry) as a |idx| x n array (a copy)."""
         return self.store[self._ensure(idx)]
+
+    def slots(self, idx: np.ndarray) -> np.ndarray:
+        """The rows of ``store`` holding K[idx, :] (at most ``capacity`` of them), computing
+        the missing ones."""
+        return self._ensure(idx)
 
     def fill(self, idx: np.ndarray) -> None:
         """Compute and keep columns idx (at most ``capacity`` of them)."""

@@ -19,7 +19,8 @@ import logging
 import os
 import tempfile
 
-COMPILED = ("solver.kernels.rbf_core", "solver.qp.smo_core", "solver.qp.face_core")
+COMPILED = ("solver.kernels.rbf_core", "solver.qp.smo_core", "solver.qp.row_sums",
+            "solver.qp.face_core")
 log = logging.getLogger(__name__)
 
 

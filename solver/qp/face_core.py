@@ -39,7 +39,8 @@ import numpy as np
 
 from solver.qp.factor_core import (RIDGE, _append, _delete, _forward, _kept_solve, _kept_step,
                                   _lu_solve, _remove, _solve)
-from solver.qp.smo_core import _slot
+from solver.qp.row_sums import _row
+from solver.qp.row_sums import catch_up as _catch_up
 
 DONE, STOPPED, HAND_BACK = 1, 0, -1      # what face_steps returns first
 FACTOR, DENSE, NEITHER = 0, 1, -1        # what _add returns
@@ -47,13 +48,6 @@ RESIDUAL = 1e-9                          # face-system residual accepted, relati
 CHECKED = 32                             # rows of the face system checked after each solve
 REFINE = 2                               # steps of iterative refinement when a check fails
 POLISH = 2                               # face steps more when F_S ends off b
-
-
-@nb.njit(cache=True, nogil=True)
-def _row(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, counts):
-    if slot_of[i] < 0:
-        counts[0] += 1
-    return rows[_slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, len(X))]
 
 
 @nb.njit(cache=True, nogil=True)
@@ -380,20 +374,3 @@ def _follow(FS, members, m, hit, change, solution, t, b, ridge, X, gamma, rows, 
                 for q in range(m):
                     if hit[q] == 0.0:
                         FS[members[q]] -= off * row[members[q]]
-
-
-@nb.njit(cache=True, nogil=True)
-def _catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner, stamp, clock,
-              partial, act, counts):
-    """F -= K[:, touched] pending[touched] on every point, and pending back to 0."""
-    n = len(F)
-    for k in range(waiting):
-        i = touched[k]
-        w = pending[i]
-        pending[i] = 0.0
-        marked[i] = False
-        if w != 0.0:
-            row = _row(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act,
-                       counts)
-            for t in range(n):
-                F[t] -= w * row[t]

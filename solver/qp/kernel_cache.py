@@ -26,7 +26,7 @@ import weakref
 
 import numpy as np
 
-from solver.qp import smo_core
+from solver.qp import row_sums
 
 BUDGET = 200 * 2**20        # bytes of kernel columns kept
 BLOCK = 2**17               # kernel entries computed at a time
@@ -174,7 +174,7 @@ class KernelColumns:
 
     def _combine(self, slots, weights, out):
         """out += weights @ store[slots], the rows read in place (compiled)."""
-        smo_core.add_rows(self.store, np.ascontiguousarray(slots, dtype=np.intp),
+        row_sums.add_rows(self.store, np.ascontiguousarray(slots, dtype=np.intp),
                           np.ascontiguousarray(weights, dtype=float), out)
         return out
 

@@ -40,7 +40,7 @@ def test_compiled_kernel_blocks_and_rows_are_the_gaussian_written_out():
     block = rbf_core.rbf_block(np.ascontiguousarray(X[:50]), X, 10.0)
     np.testing.assert_allclose(block, reference[:50], rtol=0, atol=1e-15)
     row = np.empty(400)
-    smo_core._rbf_row(X, 7, 10.0, row, np.arange(400), 400)
+    smo_core._rbf_row(X, 7, 10.0, np.inf, row, np.arange(400), 400)
     np.testing.assert_allclose(row, reference[7], rtol=0, atol=1e-15)
     # three features go through the general loop
     rng = np.random.default_rng(1)

@@ -33,7 +33,7 @@ def test_catching_up_subtracts_the_waiting_changes_on_every_point(count, capacit
     F = rng.normal(size=50)
     expected = F - _gaussian(X, X[touched], gamma) @ pending[touched]
     counts = np.zeros(1, dtype=np.int64)
-    row_sums.catch_up(F, pending, touched.astype(np.int64), marked, count, X, gamma, rows,
+    row_sums.catch_up(F, pending, touched.astype(np.int64), marked, count, X, gamma, np.inf, rows,
                       slot_of, owner, stamp, 1, np.zeros(capacity, dtype=bool), np.arange(50),
                       counts)
     np.testing.assert_allclose(F, expected, rtol=0, atol=1e-13)

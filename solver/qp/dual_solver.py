@@ -37,6 +37,7 @@ from threadpoolctl import ThreadpoolController
 
 from solver.qp import dual_certify as certify
 from solver.qp import smo
+from solver.qp.point_order import along_first_feature
 from solver.qp.dual_qp import DualSolution, check_conflicting_duplicates, solve_qp
 from solver.qp.active_set import active_set
 from solver.qp.dual_polish import polish
@@ -91,30 +92,28 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
     """
     with _BLAS.limit(limits=1, user_api="blas"):
         if rbf_gamma is not None and np.isfinite(penalties).all():
-            # one row cache for the pair steps and, if they do not certify, the rounds;
-            # the last fit's, when it had these points and this gamma (a C step)
-            key = ("rbf", float(rbf_gamma))
-            columns = RECENT.take(np.asarray(X, dtype=float), key)
-            if columns is None:
-                columns = smo.rbf_columns(X, rbf_gamma)
-            try:
-                return _fast_then_rounds(X, y, penalties, kernel_matrix, options,
-                                         guess_margin, alpha_start, rbf_gamma, columns)
-            finally:
-                RECENT.keep(key, columns)
+            return along_first_feature(_rbf, np.asarray(X, dtype=float), y, penalties,
+                                       guess_margin, alpha_start, kernel_matrix, options,
+                                       rbf_gamma)
         return _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start)
 
 
-def _fast_then_rounds(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start,
-                      gamma, columns) -> DualSolution:
-    fast, found = _pair_steps(X, y, penalties, gamma, guess_margin, alpha_start,
-                              columns=columns)
-    if fast is not None:
-        return fast
-    rest = _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, found.alpha,
-                       columns)
-    # the count a ConvergenceError reports includes the steps before the hand-over
-    return replace(rest, iterations=rest.iterations + found.steps + found.face_steps)
+def _rbf(X, y, penalties, guess_margin, alpha_start, kernel_matrix, options, gamma):
+    """The RBF dual: pair steps and their finish, then rounds if need be, on one row
+    cache (the last fit's, when it had these points and this gamma: a C step)."""
+    key = ("rbf", float(gamma))
+    columns = RECENT.take(X, key) or smo.rbf_columns(X, gamma)
+    try:
+        fast, found = _pair_steps(X, y, penalties, gamma, guess_margin, alpha_start,
+                                  columns=columns)
+        if fast is not None:
+            return fast
+        rest = _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin,
+                           found.alpha, columns)
+        # the count a ConvergenceError reports includes the steps before the hand-over
+        return replace(rest, iterations=rest.iterations + found.steps + found.face_steps)
+    finally:
+        RECENT.keep(key, columns)
 
 
 def _pair_steps(X, y, upper, gamma, guess_margin, alpha_start, columns=None):

@@ -64,14 +64,14 @@ def _add(L, order, m, members, j, row_j, dense, wide):
 
 
 @nb.njit(cache=True, nogil=True)
-def _dense_solve(X, gamma, F, members, m, excess, d, rows, slot_of, owner, stamp, clock,
+def _dense_solve(X, gamma, reach, F, members, m, excess, d, rows, slot_of, owner, stamp, clock,
                  partial, act, counts):
     """(solved, b) of the bordered face system by LU with partial pivoting, d[:m] = d:
     what a nearly singular K_SS (a wide kernel) leaves, as smo's Bunch-Kaufman fallback."""
     system = np.zeros((m + 1, m + 1))
     right = np.zeros(m + 1)
     for r in range(m):
-        row = _row(members[r], X, gamma, rows, slot_of, owner, stamp, clock, partial, act,
+        row = _row(members[r], X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act,
                    counts)
         for c in range(m):
             system[r, c] = row[members[c]]
@@ -97,7 +97,7 @@ def _take_largest(values):
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
-def _solved(X, gamma, F, members, m, d, b, ridge, tolerance, checked, residual, rows,
+def _solved(X, gamma, reach, F, members, m, d, b, ridge, tolerance, checked, residual, rows,
             slot_of, owner, stamp, clock, partial, act, counts):
     """Whether |(K_SS + ridge I) d + b - F_S| <= tolerance on ``checked`` rows spread over
     S (all of them when checked >= m); residual[:m] = F_S - (K_SS + ridge I) d - b where
@@ -106,7 +106,7 @@ def _solved(X, gamma, F, members, m, d, b, ridge, tolerance, checked, residual, 
     ok = True
     for k in range(checked):
         r = k * (m - 1) // (checked - 1) if checked > 1 else 0
-        row = _row(members[r], X, gamma, rows, slot_of, owner, stamp, clock, partial, act,
+        row = _row(members[r], X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act,
                    counts)
         s = 0.0
         for c in range(m):
@@ -118,7 +118,7 @@ def _solved(X, gamma, F, members, m, d, b, ridge, tolerance, checked, residual, 
 
 
 @nb.njit(cache=True, nogil=True)
-def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patient, far,
+def face_steps(X, gamma, reach, y, upper, alpha, F, L, order, members, m, limit, patient, far,
                release, wide, near_bound, short_t, short_steps, rows, slot_of, owner, stamp):
     """Face steps from the free set of alpha (alpha, F in place) until no variable is on
     the wrong side of b, ``limit`` steps, or a reason to stop.  L: the lower Cholesky
@@ -158,8 +158,9 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
         if 0.0 < alpha[t] < upper[t] and not in_S[t]:
             if m >= capacity:
                 return HAND_BACK, 0, counts[0], -1
-            added = _add(L, order, m, members, t, _row(t, X, gamma, rows, slot_of, owner, stamp,
-                                                clock, partial, act, counts), dense, wide)
+            added = _add(L, order, m, members, t,
+                         _row(t, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial,
+                              act, counts), dense, wide)
             if added == NEITHER:
                 return HAND_BACK, 0, counts[0], -1
             dense = added == DENSE
@@ -203,14 +204,14 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                     _forward(L, order, m, work, zF, z1)
                 z_kept = True
                 b = _kept_solve(L, order, m, excess, zF, z1, change)   # change: d of beta_S
-                solved = _solved(X, gamma, FS, members, m, change, b, RIDGE,
+                solved = _solved(X, gamma, reach, FS, members, m, change, b, RIDGE,
                                  RESIDUAL * largest, min(CHECKED, m), work, rows, slot_of,
                                  owner, stamp, clock, partial, act, counts)
                 if solved or afresh:
                     break
                 z_kept = False          # the kept z drifted from F_S: once more afresh
             if not solved:              # the whole residual, which the refinement solves
-                _solved(X, gamma, FS, members, m, change, b, RIDGE, RESIDUAL * largest, m,
+                _solved(X, gamma, reach, FS, members, m, change, b, RIDGE, RESIDUAL * largest, m,
                         work, rows, slot_of, owner, stamp, clock, partial, act, counts)
             for _ in range(REFINE if not solved else 0):
                 excess_d = excess
@@ -221,7 +222,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                 for r in range(m):
                     change[r] += u[r] - shift * v[r]
                 b += shift
-                solved = _solved(X, gamma, FS, members, m, change, b, RIDGE,
+                solved = _solved(X, gamma, reach, FS, members, m, change, b, RIDGE,
                                  RESIDUAL * largest, m, work, rows, slot_of, owner, stamp,
                                  clock, partial, act, counts)
                 if solved:
@@ -232,7 +233,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                     break
                 dense = True
         if dense:
-            solved, b = _dense_solve(X, gamma, FS, members, m, excess, change, rows, slot_of,
+            solved, b = _dense_solve(X, gamma, reach, FS, members, m, excess, change, rows, slot_of,
                                      owner, stamp, clock, partial, act, counts)
             if not solved:          # (its residual is not checked: the fit is judged
                 status = HAND_BACK  # on F computed afresh at the end)
@@ -281,7 +282,7 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
                 pending[i] += change[r]
         if t_max < 1.0:
             _follow(FS, members, m, work, change, solution, t_max, b, 0.0 if dense else RIDGE,
-                    X, gamma, rows,
+                    X, gamma, reach, rows,
                     slot_of, owner, stamp, clock, partial, act, counts)
             if not dense:
                 _kept_step(L, order, m, zF, z1, t_max, b, work, change, solution)
@@ -296,8 +297,8 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
             continue
         # every free variable is where the face puts it: F on every point, then release
         # the worst on the wrong side
-        _catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner, stamp,
-                  clock, partial, act, counts)
+        _catch_up(F, pending, touched, marked, waiting, X, gamma, reach, rows, slot_of, owner,
+                  stamp, clock, partial, act, counts)
         waiting = 0
         drift = 0.0
         z_kept = False
@@ -341,21 +342,22 @@ def face_steps(X, gamma, y, upper, alpha, F, L, order, members, m, limit, patien
             fresh[j] = True
             if m >= capacity:
                 return HAND_BACK, steps, counts[0], -1
-            added = _add(L, order, m, members, j, _row(j, X, gamma, rows, slot_of, owner, stamp,
-                                                clock, partial, act, counts), dense, wide)
+            added = _add(L, order, m, members, j,
+                         _row(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial,
+                              act, counts), dense, wide)
             if added == NEITHER:
                 return HAND_BACK, steps, counts[0], -1
             dense = added == DENSE
             in_S[j] = True
             FS[j] = F[j]
             m += 1
-    _catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner, stamp, clock,
-              partial, act, counts)
+    _catch_up(F, pending, touched, marked, waiting, X, gamma, reach, rows, slot_of, owner, stamp,
+              clock, partial, act, counts)
     return status, steps, counts[0], -1 if dense or status == HAND_BACK else m
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
-def _follow(FS, members, m, hit, change, solution, t, b, ridge, X, gamma, rows, slot_of,
+def _follow(FS, members, m, hit, change, solution, t, b, ridge, X, gamma, reach, rows, slot_of,
             owner, stamp, clock, partial, act, counts):
     """F on the members that stay in S after a step of t along the face system's
     solution ((K_SS + ridge I) d + b 1 = F_S): K_SS (t d) = t (F_S - b - ridge d), so
@@ -369,7 +371,7 @@ def _follow(FS, members, m, hit, change, solution, t, b, ridge, X, gamma, rows, 
         if hit[r] == 1.0:
             off = change[r] - t * solution[r]
             if off != 0.0:
-                row = _row(members[r], X, gamma, rows, slot_of, owner, stamp, clock,
+                row = _row(members[r], X, gamma, reach, rows, slot_of, owner, stamp, clock,
                            partial, act, counts)
                 for q in range(m):
                     if hit[q] == 0.0:

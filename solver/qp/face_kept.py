@@ -92,9 +92,9 @@ def face_steps(columns, y, upper, alpha, F, limit, patient, far, settings, room)
         if fresh and not _refactor(kept, columns, _settled_first(free, alpha, upper)):
             return face_core.HAND_BACK, taken
         status, steps, rows, kept.m = face_core.face_steps(
-            columns.X, columns.rbf_gamma, y, upper, alpha, F, kept.L, kept.order, kept.members,
-            kept.m, int(limit) - taken, bool(patient), -1 if far is None else int(far), *settings,
-            columns.store, columns.slot, columns.owner, columns.stamp)
+            columns.X, columns.rbf_gamma, columns.reach, y, upper, alpha, F, kept.L, kept.order,
+            kept.members, kept.m, int(limit) - taken, bool(patient),
+            -1 if far is None else int(far), *settings, columns.store, columns.slot, columns.owner, columns.stamp)
         columns.clock = max(columns.clock, int(columns.stamp.max()))
         columns.computed += int(rows) * len(y)
         taken += int(steps)

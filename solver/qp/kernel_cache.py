@@ -122,6 +122,7 @@ class KernelColumns:
         self.clock = 0
         self.computed = 0                                # kernel entries evaluated
         self.rbf_gamma = None           # set for an RBF kernel: compiled code computes rows
+        self.reach = np.inf             # ... and reads them within this reach (point_order)
         self.kept_factor = None         # the face steps' last Cholesky factor (face_kept)
 
     @property

@@ -12,23 +12,23 @@ from __future__ import annotations
 
 import numba as nb
 
-from solver.qp.smo_core import _slot
+from solver.qp.smo_core import _slot, window
 
 GROUP = 4            # rows summed in one pass
 
 
 @nb.njit(cache=True, nogil=True)
-def _row(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, counts):
+def _row(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, counts):
     """The cache row of k(x_i, .), computed (and counted) when absent."""
     if slot_of[i] < 0:
         counts[0] += 1
-    return rows[_slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, len(X))]
+    return rows[_slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, len(X))]
 
 
 @nb.njit(cache=True, nogil=True)
-def _four(out, sign, w0, w1, w2, w3, r0, r1, r2, r3):
-    """out += sign (w0 r0 + w1 r1 + w2 r2 + w3 r3), in one pass."""
-    for t in range(len(out)):
+def _four(out, sign, w0, w1, w2, w3, r0, r1, r2, r3, lo, hi):
+    """out[lo:hi] += sign (w0 r0 + w1 r1 + w2 r2 + w3 r3), in one pass."""
+    for t in range(lo, hi):
         out[t] += sign * ((w0 * r0[t] + w1 * r1[t]) + (w2 * r2[t] + w3 * r3[t]))
 
 
@@ -41,7 +41,8 @@ def add_rows(store, slots, weights, out):
     count = len(slots)
     while k + GROUP <= count:
         _four(out, 1.0, weights[k], weights[k + 1], weights[k + 2], weights[k + 3],
-              store[slots[k]], store[slots[k + 1]], store[slots[k + 2]], store[slots[k + 3]])
+              store[slots[k]], store[slots[k + 1]], store[slots[k + 2]], store[slots[k + 3]],
+              0, len(out))
         k += GROUP
     for q in range(k, count):
         w = weights[q]
@@ -52,7 +53,7 @@ def add_rows(store, slots, weights, out):
 
 
 @nb.njit(cache=True, nogil=True)
-def catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owner, stamp,
+def catch_up(F, pending, touched, marked, waiting, X, gamma, reach, rows, slot_of, owner, stamp,
              clock, partial, act, counts):
     """F -= K[:, touched] pending[touched] on every point, and pending back to 0.
 
@@ -61,13 +62,18 @@ def catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owne
     k = 0
     while k + GROUP <= waiting:
         i0, i1, i2, i3 = touched[k], touched[k + 1], touched[k + 2], touched[k + 3]
-        r0 = _row(i0, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, counts)
-        r1 = _row(i1, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, counts)
-        r2 = _row(i2, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, counts)
-        r3 = _row(i3, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, counts)
+        r0 = _row(i0, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, counts)
+        r1 = _row(i1, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, counts)
+        r2 = _row(i2, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, counts)
+        r3 = _row(i3, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, counts)
         if slot_of[i0] < 0 or slot_of[i1] < 0 or slot_of[i2] < 0:
             break                            # one of the four gave its slot up: one by one
-        _four(F, -1.0, pending[i0], pending[i1], pending[i2], pending[i3], r0, r1, r2, r3)
+        lo, hi = len(F), 0                   # the points within reach of any of the four
+        for i in (i0, i1, i2, i3):
+            a, z = window(X, i, reach)
+            lo, hi = min(lo, a), max(hi, z)
+        _four(F, -1.0, pending[i0], pending[i1], pending[i2], pending[i3], r0, r1, r2, r3,
+              lo, hi)
         for i in (i0, i1, i2, i3):
             pending[i] = 0.0
             marked[i] = False
@@ -78,6 +84,8 @@ def catch_up(F, pending, touched, marked, waiting, X, gamma, rows, slot_of, owne
         pending[i] = 0.0
         marked[i] = False
         if w != 0.0:
-            row = _row(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, counts)
-            for t in range(len(F)):
+            row = _row(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act,
+                       counts)
+            lo, hi = window(X, i, reach)
+            for t in range(lo, hi):
                 F[t] -= w * row[t]

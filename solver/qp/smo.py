@@ -34,7 +34,7 @@ import numpy as np
 
 from solver.kernels.rbf_core import rbf_block
 from solver.qp import dual_certify as certify
-from solver.qp import face_core, face_kept, smo_core
+from solver.qp import face_core, face_kept, point_order, smo_core
 from solver.qp.copies import gathered
 from solver.qp.dual_start import feasible
 from solver.qp.face_factor import FaceFactor
@@ -179,7 +179,7 @@ def _pair_steps(X, y, upper, gamma, alpha, F, eps, budget, columns):
     taken = 0
     while True:
         steps, violation, left_out = smo_core.smo_rbf(
-            X, y, upper, gamma, alpha, F, eps, budget - taken,
+            X, y, upper, gamma, columns.reach, alpha, F, eps, budget - taken,
             columns.store, columns.slot, columns.owner, columns.stamp)
         columns.clock = max(columns.clock, int(columns.stamp.max()))
         taken += int(steps)
@@ -219,6 +219,7 @@ def rbf_columns(X, gamma) -> KernelColumns:
                             lambda A, B: rbf_block(np.ascontiguousarray(A), B, gamma),
                             budget=CACHE_BYTES)
     columns.rbf_gamma = gamma             # the compiled face steps compute rows themselves
+    columns.reach = point_order.reach(columns.X, gamma)
     return columns
 
 

@@ -36,28 +36,78 @@ TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
 
 
 @nb.njit(cache=True, nogil=True)
-def _rbf_row(X, i, gamma, out, act, m):
-    """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X))."""
+def _bisect(values, count, key):
+    """The first k < count with values[k] >= key (values[:count] ascending), else count."""
+    low, high = 0, count
+    while low < high:
+        middle = (low + high) // 2
+        if values[middle] < key:
+            low = middle + 1
+        else:
+            high = middle
+    return low
+
+
+@nb.njit(cache=True, nogil=True)
+def window(X, i, reach):
+    """(lo, hi): the points t in lo <= t < hi are those within ``reach`` of x_i along
+    the first feature, when the points are in its order (``reach`` inf: all of them).
+    Beyond reach k(x_i, x_t) <= exp(-gamma reach^2), which ``smo.rbf_columns`` makes
+    negligible, and the steps leave those entries out (``smo`` says how)."""
+    n = len(X)
+    if not reach < np.inf:
+        return 0, n
+    x = X[i, 0]
+    low, high = 0, n            # first t with X[t, 0] > x - reach, then >= x + reach
+    while low < high:
+        middle = (low + high) // 2
+        if X[middle, 0] <= x - reach:
+            low = middle + 1
+        else:
+            high = middle
+    lo = low
+    high = n
+    while low < high:
+        middle = (low + high) // 2
+        if X[middle, 0] < x + reach:
+            low = middle + 1
+        else:
+            high = middle
+    return lo, low
+
+
+@nb.njit(cache=True, nogil=True)
+def _rbf_row(X, i, gamma, reach, out, act, m):
+    """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X)); 0 beyond reach."""
     n, d = X.shape
+    lo, hi = window(X, i, reach)
     if m == n:
-        scaled_distances(X, X[i], gamma, out)
-        exp_negative(out, np.empty(n, dtype=np.int64))
+        out[:lo] = 0.0
+        out[hi:] = 0.0
+        part = out[lo:hi]
+        scaled_distances(X[lo:hi], X[i], gamma, part)
+        exp_negative(part, np.empty(hi - lo, dtype=np.int64))
         return
-    values = np.empty(m)
-    for k in range(m):
+    first, last = _bisect(act, m, lo), _bisect(act, m, hi)
+    for k in range(first):
+        out[act[k]] = 0.0
+    for k in range(last, m):
+        out[act[k]] = 0.0
+    values = np.empty(last - first)
+    for k in range(first, last):
         t = act[k]
         s = 0.0
         for c in range(d):
             diff = X[t, c] - X[i, c]
             s += diff * diff
-        values[k] = -gamma * s
-    exp_negative(values, np.empty(m, dtype=np.int64))
-    for k in range(m):
-        out[act[k]] = values[k]
+        values[k - first] = -gamma * s
+    exp_negative(values, np.empty(last - first, dtype=np.int64))
+    for k in range(first, last):
+        out[act[k]] = values[k - first]
 
 
 @nb.njit(cache=True, nogil=True)
-def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m):
+def _slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m):
     """The cache row holding k(x_i, .), computed into the least recently used slot on a
     miss; while variables are left out (m < n) only the searched entries are computed
     and the row is marked partial."""
@@ -73,7 +123,7 @@ def _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m):
             slot_of[owner[s]] = -1
         owner[s] = i
         slot_of[i] = s
-        _rbf_row(X, i, gamma, rows[s], act, m)
+        _rbf_row(X, i, gamma, reach, rows[s], act, m)
         partial[s] = m < len(X)
     stamp[s] = clock
     return s
@@ -105,19 +155,57 @@ def _sides(y, C, alpha, t, up, low):
 
 @nb.njit(cache=True, nogil=True)
 def _extremes(F, act, m, up, low):
-    """(largest F over up, its index, smallest F over low) on act[:m]."""
-    f_up, i, f_low = -np.inf, -1, np.inf
-    for k in range(m):
+    """(largest F over up, its index, smallest F over low, its index) on act[:m]."""
+    return _extremes_from(F, act, 0, m, up, low, -np.inf, -1, np.inf, -1)
+
+
+@nb.njit(cache=True, nogil=True)
+def _best_pair(F, act, first, last, low, f_up, row_i, k_ii, within, best, j):
+    """The best j so far (largest gain^2 / curvature) and its score, over act[first:last];
+    ``within``: those points are within reach of i (else k_it is taken as 0)."""
+    for k in range(first, last):
+        t = act[k]
+        if low[t]:
+            gain = f_up - F[t]
+            if gain > 0.0:
+                k_it = row_i[t] if within else 0.0
+                curvature = k_ii + 1.0 - 2.0 * k_it     # k_tt = 1 for the RBF kernel
+                if curvature <= 0.0:
+                    curvature = TAU
+                score = gain * gain / curvature
+                if score > best:
+                    best, j = score, t
+    return best, j
+
+
+@nb.njit(cache=True, nogil=True)
+def _extremes_from(F, act, first, last, up, low, f_up, i, f_low, j):
+    """_extremes over act[first:last], carried on from (f_up, i, f_low, j)."""
+    for k in range(first, last):
         t = act[k]
         if up[t] and F[t] > f_up:
             f_up, i = F[t], t
         if low[t] and F[t] < f_low:
-            f_low = F[t]
-    return f_up, i, f_low
+            f_low, j = F[t], t
+    return f_up, i, f_low, j
 
 
 @nb.njit(cache=True, nogil=True)
-def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stamp):
+def _update(F, act, first, last, up, low, step, row_i, row_j, f_up, i, f_low, j):
+    """F -= step (k_i - k_j) over act[first:last], and _extremes_from there."""
+    for k in range(first, last):
+        t = act[k]
+        value = F[t] - step * (row_i[t] - row_j[t])
+        F[t] = value
+        if up[t] and value > f_up:
+            f_up, i = value, t
+        if low[t] and value < f_low:
+            f_low, j = value, t
+    return f_up, i, f_low, j
+
+
+@nb.njit(cache=True, nogil=True)
+def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owner, stamp):
     """Pair steps until max(F over up) - min(F over low) <= eps over the variables still
     searched, or max_steps.
 
@@ -137,30 +225,30 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
     clock = stamp.max() + 1
     partial = np.zeros(len(owner), dtype=nb.boolean)
     steps = 0
-    f_up, i, f_low = _extremes(F, act, m, up, low)
+    f_up, i, f_low, lowest = _extremes(F, act, m, up, low)
     while True:
         violation = f_up - f_low
         if i < 0 or violation <= eps or steps >= max_steps:
             break
-        si = _slot(i, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m)
+        si = _slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
         k_ii = row_i[i]
-        best, j = 0.0, -1
-        for k in range(m):
-            t = act[k]
-            if low[t]:
-                gain = f_up - F[t]
-                if gain > 0.0:
-                    curvature = k_ii + 1.0 - 2.0 * row_i[t]   # k_tt = 1 for the RBF kernel
-                    if curvature <= 0.0:
-                        curvature = TAU
-                    score = gain * gain / curvature
-                    if score > best:
-                        best, j = score, t
+        lo_i, hi_i = window(X, i, reach)
+        first, last = _bisect(act, m, lo_i), _bisect(act, m, hi_i)
+        if not lo_i <= lowest < hi_i:
+            # beyond reach k_it = 0: the curvature is k_ii + 1 for all, and the best
+            # there is the smallest F over low
+            best, j = 0.0, -1
+            if f_up - f_low > 0.0:
+                best, j = (f_up - f_low) ** 2 / max(k_ii + 1.0, TAU), lowest
+        else:
+            best, j = _best_pair(F, act, 0, first, low, f_up, row_i, k_ii, False, 0.0, -1)
+            best, j = _best_pair(F, act, last, m, low, f_up, row_i, k_ii, False, best, j)
+        best, j = _best_pair(F, act, first, last, low, f_up, row_i, k_ii, True, best, j)
         if j < 0:
             break
-        sj = _slot(j, X, gamma, rows, slot_of, owner, stamp, clock, partial, act, m)
+        sj = _slot(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
         row_j = rows[sj]
@@ -184,16 +272,16 @@ def smo_rbf(X, y, C, gamma, alpha, F, eps, max_steps, rows, slot_of, owner, stam
             alpha[j] = C[j] if step == C[j] - alpha[j] else min(alpha[j] + step, C[j])
         _sides(y, C, alpha, i, up, low)
         _sides(y, C, alpha, j, up, low)
-        # update F and find the next extremes in one pass
-        f_up, i, f_low = -np.inf, -1, np.inf
-        for k in range(m):
-            t = act[k]
-            value = F[t] - step * (row_i[t] - row_j[t])
-            F[t] = value
-            if up[t] and value > f_up:
-                f_up, i = value, t
-            if low[t] and value < f_low:
-                f_low = value
+        # update F within reach of i or j and find the next extremes, in one pass
+        lo_j, hi_j = window(X, j, reach)
+        first = _bisect(act, m, min(lo_i, lo_j))
+        last = _bisect(act, m, max(hi_i, hi_j))
+        f_up, i, f_low, lowest = _extremes_from(F, act, 0, first, up, low, -np.inf, -1,
+                                                np.inf, -1)
+        f_up, i, f_low, lowest = _update(F, act, first, last, up, low, step, row_i, row_j,
+                                         f_up, i, f_low, lowest)
+        f_up, i, f_low, lowest = _extremes_from(F, act, last, m, up, low, f_up, i, f_low,
+                                                lowest)
         steps += 1
         countdown -= 1
         if countdown <= 0:

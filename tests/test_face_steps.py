@@ -158,8 +158,7 @@ def test_compiled_and_python_face_steps_reach_the_reference_optimum(monkeypatch)
 
 def test_a_wide_kernels_gamma_step_solves_densely_where_the_factor_fails(monkeypatch):
     # gamma 0.5, C 1000: K_SS on the free set is too near singular to extend its factor
-    # (found by trial on this data, whose points the solver takes in the order of their
-    # first feature: the compiled steps end with the factor given up)
+    # (found by trial on this data: the compiled steps end with the factor given up)
     X, y = _blobs(300)
     base = FitConfig(C=1000.0, kernel="rbf", gamma=0.5)
     first = fit(X, y, base)

@@ -49,7 +49,9 @@ def test_a_row_beyond_reach_is_zero_and_within_it_the_kernel():
     assert 0 < lo and hi < 400                                    # some left out
     assert not row[:lo].any() and not row[hi:].any()
     assert exact[:lo].max() < 1e-20 and exact[hi:].max() < 1e-20  # what was left out
-    np.testing.assert_allclose(row[lo:hi], exact[lo:hi], rtol=4e-16, atol=0)
+    kept = exact[lo:hi] >= np.exp(smo_core.FLOOR)                 # the rest is 0 too
+    np.testing.assert_allclose(row[lo:hi][kept], exact[lo:hi][kept], rtol=4e-16, atol=0)
+    assert not row[lo:hi][~kept].any() and exact[lo:hi][~kept].max() < 1e-20
 
 
 @pytest.mark.parametrize("C", [1.0, 100.0, 1e4])
@@ -68,3 +70,13 @@ def test_a_narrow_kernel_fit_within_reach_reaches_the_reference_optimum(C, monke
     alpha_svc = np.zeros(len(y))
     alpha_svc[svc.support_] = np.abs(svc.dual_coef_[0])
     np.testing.assert_allclose(result.alpha, alpha_svc, rtol=0, atol=1e-5 * C)
+
+
+def test_the_solvers_kernel_blocks_are_0_below_the_floor_and_exact_above_it():
+    from solver.kernels import rbf_core
+    X, _ = _moons(300)
+    block = rbf_core.rbf_block(np.ascontiguousarray(X[:40]), X, 50.0, smo_core.FLOOR)
+    exact = _gaussian(X[:40], X, 50.0)                            # written out
+    small = exact < np.exp(smo_core.FLOOR)                        # below 1e-20
+    assert small.any() and not block[small].any()
+    np.testing.assert_allclose(block[~small], exact[~small], rtol=4e-16, atol=0)

@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 
 from solver.kernels.base import Kernel
-from solver.kernels.rbf_core import rbf_block
+from solver.kernels.rbf_core import UNDERFLOW, rbf_block
 from solver.limits import COORDINATE
 from solver.parameters import PARAMETERS
 
@@ -27,7 +27,7 @@ def rbf_matrix(A: np.ndarray, B: np.ndarray, gamma: float) -> np.ndarray:
     A = np.ascontiguousarray(A, dtype=float)
     B = np.ascontiguousarray(B, dtype=float)
     if _compiled_safe(A) and _compiled_safe(B) and 0.0 <= gamma <= GAMMA:
-        return rbf_block(A, B, float(gamma))
+        return rbf_block(A, B, float(gamma), UNDERFLOW)
     with np.errstate(over="ignore"):      # a huge point: its squares are inf, its k 0
         A_ext = np.column_stack([A, (A * A).sum(1), np.ones(len(A))])
         B_ext = np.column_stack([-2.0 * B, np.ones(len(B)), (B * B).sum(1)])

@@ -20,14 +20,18 @@ import numpy as np
 LOG2E = 1.4426950408889634
 LN2_HIGH = 6.93147180369123816490e-01     # ln 2 in two parts (fdlibm's): k ln2_high is exact
 LN2_LOW = 1.90821492927058770002e-10
+UNDERFLOW = -745.0                         # a floor that leaves every double's exp as it is
 
 
 # no "reassoc" among the flags: it would undo the two-part reduction (measured: 100 ulp at
 # x = -700 with it, 1.43 ulp at most on [-700, 0] without)
 @nb.njit(cache=True, nogil=True, fastmath={"contract", "nsz", "arcp", "nnan", "ninf"})
-def exp_negative(values, bits):
+def exp_negative(values, bits, floor):
     """values[:] = exp(values) for values <= 0, in place, to 1.5 ulp; exp(x) for x below
-    -708 (under 2.2e-308) is 0.  bits: int64 scratch as long as values.
+    -708 (under 2.2e-308), or below ``floor``, is 0.  bits: int64 scratch as long as
+    values.  (The solver's floor is -46: a kernel matrix of points in order, with entries
+    of 1e-200, made LAPACK's Cholesky factor 3.4 times slower than with those entries 0,
+    on products below the smallest normal double; ``qp/point_order.py``.)
 
     libm's exp is a call per entry (10 ns here); this one vectorises (3 ns): exp(x) =
     2^k exp(r) with k = round(x / ln 2), |r| <= ln2 / 2, exp(r) by its Taylor series to
@@ -51,7 +55,7 @@ def exp_negative(values, bits):
         p = p * r + 1.0
         p = p * r + 1.0
         k = np.int64(kf) + 1023               # the biased exponent of 2^k
-        if k < 1:
+        if k < 1 or values[t] < floor:
             k, p = 0, 0.0
         values[t] = p
         bits[t] = k << 52
@@ -80,11 +84,12 @@ def scaled_distances(B, a, gamma, values):
 
 
 @nb.njit(cache=True, nogil=True)
-def rbf_block(A, B, gamma):
-    """K_ij = exp(-gamma |a_i - b_j|^2) for finite A, B (C-contiguous), row by row."""
+def rbf_block(A, B, gamma, floor):
+    """K_ij = exp(-gamma |a_i - b_j|^2) for finite A, B (C-contiguous), row by row; 0 where
+    -gamma |a_i - b_j|^2 < floor."""
     out = np.empty((len(A), len(B)))
     bits = np.empty(len(B), dtype=np.int64)
     for i in range(len(A)):
         scaled_distances(B, A[i], gamma, out[i])
-        exp_negative(out[i], bits)
+        exp_negative(out[i], bits, floor)
     return out

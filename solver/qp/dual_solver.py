@@ -92,9 +92,9 @@ def solve_dual(X, y, penalties, kernel_matrix, options, guess_margin=None,
     """
     with _BLAS.limit(limits=1, user_api="blas"):
         if rbf_gamma is not None and np.isfinite(penalties).all():
-            return along_first_feature(_rbf, np.asarray(X, dtype=float), y, penalties,
-                                       guess_margin, alpha_start, kernel_matrix, options,
-                                       rbf_gamma)
+            return along_first_feature(_rbf, rbf_gamma, np.asarray(X, dtype=float), y,
+                                       penalties, guess_margin, alpha_start, kernel_matrix,
+                                       options, rbf_gamma)
         return _solve_dual(X, y, penalties, kernel_matrix, options, guess_margin, alpha_start)
 
 

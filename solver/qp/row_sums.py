@@ -28,8 +28,11 @@ def _row(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, c
 @nb.njit(cache=True, nogil=True)
 def _four(out, sign, w0, w1, w2, w3, r0, r1, r2, r3, lo, hi):
     """out[lo:hi] += sign (w0 r0 + w1 r1 + w2 r2 + w3 r3), in one pass."""
-    for t in range(lo, hi):
-        out[t] += sign * ((w0 * r0[t] + w1 * r1[t]) + (w2 * r2[t] + w3 * r3[t]))
+    a0, a1, a2, a3 = sign * w0, sign * w1, sign * w2, sign * w3
+    # on slices (range(lo, hi) on the whole arrays ran 15% slower: 9.2 against 7.8 ms)
+    o, q0, q1, q2, q3 = out[lo:hi], r0[lo:hi], r1[lo:hi], r2[lo:hi], r3[lo:hi]
+    for t in range(hi - lo):
+        o[t] += (a0 * q0[t] + a1 * q1[t]) + (a2 * q2[t] + a3 * q3[t])
 
 
 @nb.njit(cache=True, nogil=True)
@@ -87,5 +90,6 @@ def catch_up(F, pending, touched, marked, waiting, X, gamma, reach, rows, slot_o
             row = _row(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act,
                        counts)
             lo, hi = window(X, i, reach)
-            for t in range(lo, hi):
-                F[t] -= w * row[t]
+            part, source = F[lo:hi], row[lo:hi]      # slices: bounds known, so it vectorises
+            for t in range(hi - lo):
+                part[t] -= w * source[t]

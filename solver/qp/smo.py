@@ -215,11 +215,13 @@ def finish_on_face(columns, y, upper, alpha, gradient, gap_target):
 def rbf_columns(X, gamma) -> KernelColumns:
     """A kernel row cache of CACHE_BYTES for the RBF kernel on (a private copy of) X."""
     gamma = float(gamma)
-    columns = KernelColumns(np.array(X, dtype=float, order="C"),
-                            lambda A, B: rbf_block(np.ascontiguousarray(A), B, gamma),
+    X = np.array(X, dtype=float, order="C")
+    reach = point_order.reach(X, gamma)
+    floor = smo_core.floor(reach)
+    columns = KernelColumns(X, lambda A, B: rbf_block(np.ascontiguousarray(A), B, gamma, floor),
                             budget=CACHE_BYTES)
     columns.rbf_gamma = gamma             # the compiled face steps compute rows themselves
-    columns.reach = point_order.reach(columns.X, gamma)
+    columns.reach = reach                 # ... within this reach (point_order)
     return columns
 
 

@@ -30,9 +30,11 @@ from __future__ import annotations
 import numba as nb
 import numpy as np
 
-from solver.kernels.rbf_core import exp_negative, scaled_distances
+from solver.kernels.rbf_core import UNDERFLOW, exp_negative, scaled_distances
+from solver.qp.point_order import REACH
 
 TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
+FLOOR = -REACH       # kernel values below exp(FLOOR) are computed as 0 (point_order) ...
 
 
 @nb.njit(cache=True, nogil=True)
@@ -77,6 +79,13 @@ def window(X, i, reach):
 
 
 @nb.njit(cache=True, nogil=True)
+def floor(reach):
+    """... when rows are read within a finite reach; otherwise only values that underflow
+    are 0 (the points in the caller's order, as before the order existed: the same fits)."""
+    return FLOOR if reach < np.inf else UNDERFLOW
+
+
+@nb.njit(cache=True, nogil=True)
 def _rbf_row(X, i, gamma, reach, out, act, m):
     """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X)); 0 beyond reach."""
     n, d = X.shape
@@ -86,7 +95,7 @@ def _rbf_row(X, i, gamma, reach, out, act, m):
         out[hi:] = 0.0
         part = out[lo:hi]
         scaled_distances(X[lo:hi], X[i], gamma, part)
-        exp_negative(part, np.empty(hi - lo, dtype=np.int64))
+        exp_negative(part, np.empty(hi - lo, dtype=np.int64), floor(reach))
         return
     first, last = _bisect(act, m, lo), _bisect(act, m, hi)
     for k in range(first):
@@ -94,14 +103,14 @@ def _rbf_row(X, i, gamma, reach, out, act, m):
     for k in range(last, m):
         out[act[k]] = 0.0
     values = np.empty(last - first)
-    for k in range(first, last):
-        t = act[k]
+    for k in range(last - first):
+        t = act[first + k]
         s = 0.0
         for c in range(d):
             diff = X[t, c] - X[i, c]
             s += diff * diff
-        values[k - first] = -gamma * s
-    exp_negative(values, np.empty(last - first, dtype=np.int64))
+        values[k] = -gamma * s
+    exp_negative(values, np.empty(last - first, dtype=np.int64), floor(reach))
     for k in range(first, last):
         out[act[k]] = values[k - first]
 
@@ -160,16 +169,13 @@ def _extremes(F, act, m, up, low):
 
 
 @nb.njit(cache=True, nogil=True)
-def _best_pair(F, act, first, last, low, f_up, row_i, k_ii, within, best, j):
-    """The best j so far (largest gain^2 / curvature) and its score, over act[first:last];
-    ``within``: those points are within reach of i (else k_it is taken as 0)."""
-    for k in range(first, last):
-        t = act[k]
+def _best_pair(F, act, first, last, low, f_up, row_i, k_ii, best, j):
+    """The best j so far (largest gain^2 / curvature) and its score, over act[first:last]."""
+    for t in act[first:last]:
         if low[t]:
             gain = f_up - F[t]
             if gain > 0.0:
-                k_it = row_i[t] if within else 0.0
-                curvature = k_ii + 1.0 - 2.0 * k_it     # k_tt = 1 for the RBF kernel
+                curvature = k_ii + 1.0 - 2.0 * row_i[t]   # k_tt = 1 for the RBF kernel
                 if curvature <= 0.0:
                     curvature = TAU
                 score = gain * gain / curvature
@@ -179,10 +185,23 @@ def _best_pair(F, act, first, last, low, f_up, row_i, k_ii, within, best, j):
 
 
 @nb.njit(cache=True, nogil=True)
+def _best_beyond(F, act, first, last, low, f_up, k_ii, best, j):
+    """_best_pair over points beyond reach of i, where k_it is taken as 0."""
+    curvature = max(k_ii + 1.0, TAU)
+    for t in act[first:last]:
+        if low[t]:
+            gain = f_up - F[t]
+            if gain > 0.0:
+                score = gain * gain / curvature
+                if score > best:
+                    best, j = score, t
+    return best, j
+
+
+@nb.njit(cache=True, nogil=True)
 def _extremes_from(F, act, first, last, up, low, f_up, i, f_low, j):
     """_extremes over act[first:last], carried on from (f_up, i, f_low, j)."""
-    for k in range(first, last):
-        t = act[k]
+    for t in act[first:last]:
         if up[t] and F[t] > f_up:
             f_up, i = F[t], t
         if low[t] and F[t] < f_low:
@@ -193,8 +212,7 @@ def _extremes_from(F, act, first, last, up, low, f_up, i, f_low, j):
 @nb.njit(cache=True, nogil=True)
 def _update(F, act, first, last, up, low, step, row_i, row_j, f_up, i, f_low, j):
     """F -= step (k_i - k_j) over act[first:last], and _extremes_from there."""
-    for k in range(first, last):
-        t = act[k]
+    for t in act[first:last]:
         value = F[t] - step * (row_i[t] - row_j[t])
         F[t] = value
         if up[t] and value > f_up:
@@ -202,6 +220,21 @@ def _update(F, act, first, last, up, low, step, row_i, row_j, f_up, i, f_low, j)
         if low[t] and value < f_low:
             f_low, j = value, t
     return f_up, i, f_low, j
+
+
+@nb.njit(cache=True, nogil=True)
+def _update_whole(F, act, m, up, low, step, row_i, row_j):
+    """F -= step (k_i - k_j) over act[:m], and _extremes there."""
+    f_up, i, f_low = -np.inf, -1, np.inf
+    for k in range(m):
+        t = act[k]
+        value = F[t] - step * (row_i[t] - row_j[t])
+        F[t] = value
+        if up[t] and value > f_up:
+            f_up, i = value, t
+        if low[t] and value < f_low:
+            f_low = value
+    return f_up, i, f_low
 
 
 @nb.njit(cache=True, nogil=True)
@@ -234,18 +267,19 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         clock += 1
         row_i = rows[si]
         k_ii = row_i[i]
-        lo_i, hi_i = window(X, i, reach)
-        first, last = _bisect(act, m, lo_i), _bisect(act, m, hi_i)
-        if not lo_i <= lowest < hi_i:
+        lo_i, hi_i, first, last = 0, n, 0, m
+        if reach < np.inf:
+            lo_i, hi_i = window(X, i, reach)
+            first, last = _bisect(act, m, lo_i), _bisect(act, m, hi_i)
+        best, j = 0.0, -1
+        if lo_i <= lowest < hi_i or not reach < np.inf:
+            best, j = _best_beyond(F, act, 0, first, low, f_up, k_ii, best, j)
+            best, j = _best_beyond(F, act, last, m, low, f_up, k_ii, best, j)
+        elif f_up - f_low > 0.0:
             # beyond reach k_it = 0: the curvature is k_ii + 1 for all, and the best
             # there is the smallest F over low
-            best, j = 0.0, -1
-            if f_up - f_low > 0.0:
-                best, j = (f_up - f_low) ** 2 / max(k_ii + 1.0, TAU), lowest
-        else:
-            best, j = _best_pair(F, act, 0, first, low, f_up, row_i, k_ii, False, 0.0, -1)
-            best, j = _best_pair(F, act, last, m, low, f_up, row_i, k_ii, False, best, j)
-        best, j = _best_pair(F, act, first, last, low, f_up, row_i, k_ii, True, best, j)
+            best, j = (f_up - f_low) ** 2 / max(k_ii + 1.0, TAU), lowest
+        best, j = _best_pair(F, act, first, last, low, f_up, row_i, k_ii, best, j)
         if j < 0:
             break
         sj = _slot(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
@@ -273,15 +307,18 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         _sides(y, C, alpha, i, up, low)
         _sides(y, C, alpha, j, up, low)
         # update F within reach of i or j and find the next extremes, in one pass
-        lo_j, hi_j = window(X, j, reach)
-        first = _bisect(act, m, min(lo_i, lo_j))
-        last = _bisect(act, m, max(hi_i, hi_j))
-        f_up, i, f_low, lowest = _extremes_from(F, act, 0, first, up, low, -np.inf, -1,
-                                                np.inf, -1)
-        f_up, i, f_low, lowest = _update(F, act, first, last, up, low, step, row_i, row_j,
-                                         f_up, i, f_low, lowest)
-        f_up, i, f_low, lowest = _extremes_from(F, act, last, m, up, low, f_up, i, f_low,
-                                                lowest)
+        if reach < np.inf:
+            lo_j, hi_j = window(X, j, reach)
+            first = _bisect(act, m, min(lo_i, lo_j))
+            last = _bisect(act, m, max(hi_i, hi_j))
+            f_up, i, f_low, lowest = _extremes_from(F, act, 0, first, up, low, -np.inf, -1,
+                                                    np.inf, -1)
+            f_up, i, f_low, lowest = _update(F, act, first, last, up, low, step, row_i,
+                                             row_j, f_up, i, f_low, lowest)
+            f_up, i, f_low, lowest = _extremes_from(F, act, last, m, up, low, f_up, i,
+                                                    f_low, lowest)
+        else:           # every row read whole: no need of where the smallest F is
+            f_up, i, f_low = _update_whole(F, act, m, up, low, step, row_i, row_j)
         steps += 1
         countdown -= 1
         if countdown <= 0:

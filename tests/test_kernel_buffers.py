@@ -78,3 +78,16 @@ def test_a_block_larger_than_the_cache_is_computed_afresh():
     np.testing.assert_allclose(columns.block(idx), np.exp(-2.0 * squared), rtol=1e-12,
                                atol=1e-15)
     assert (columns.slot >= 0).sum() == 0          # nothing kept: the buffer is untouched
+
+
+def test_fresh_memory_is_zeroed_writable_float64_and_goes_when_dropped():
+    buffer = kernel_cache._fresh(3 * 2**17 + 5)       # an odd size, above SMALL
+    assert buffer.dtype == np.float64 and buffer.size == 3 * 2**17 + 5
+    assert buffer.flags.writeable and buffer.flags.c_contiguous
+    assert not buffer.any()
+    buffer[:] = 2.0
+    assert buffer.sum() == 2.0 * buffer.size
+    mapped = buffer.base.obj                          # the anonymous map under the array
+    del buffer
+    gc.collect()
+    mapped.close()        # raises BufferError while an array still uses the memory

@@ -11,6 +11,9 @@ $(STAMP): pyproject.toml constraints.txt
 	$(PYTHON) -m venv $(VENV)
 	$(PY) -m pip install --quiet --upgrade pip
 	$(PY) -m pip install --quiet -c constraints.txt -e '.[test]'
+# compile the kernel solver's steps once now (seconds), so that the first Gaussian fit in
+# the window does not wait for them
+	$(PY) -m solver.warm_up
 	touch $(STAMP)
 
 run: $(STAMP)

@@ -1,10 +1,10 @@
 """Get the compiled parts of the solver ready before anyone waits for them.
 
 The RBF pair and face steps and kernel rows (``qp/smo_core.py``, ``qp/face_core.py``,
-``kernels/rbf_core.py``) are compiled by numba on their first call: about 25 s on
-our 2-core test machine when its cache is empty (8 s before the face steps and
-kernel rows were compiled too), half a second when the compiled code is found in
-a cache.  ``prepare_kernel_solver`` makes
+``kernels/rbf_core.py``) are compiled by numba on their first call: 12-14 s on
+our 2-core test machines when its cache is empty, a fifth of a second when the
+compiled code is found in a cache (``python -m solver.warm_up``, which the
+Makefile's set-up runs, fills it).  ``prepare_kernel_solver`` makes
 that first call on a tiny invented problem, so that a program with time to
 spare (the window, just after it opens) pays it before the user asks for a
 kernel fit.  numba compiles a function once per process under its own lock:
@@ -35,3 +35,7 @@ def prepare_kernel_solver() -> float:
     started = time.perf_counter()
     fit(X, y, _CONFIG)
     return time.perf_counter() - started
+
+
+if __name__ == "__main__":          # `python -m solver.warm_up`: the set-up step of the Makefile
+    print(f"kernel solver compiled and cached ({prepare_kernel_solver():.1f} s)")

@@ -45,3 +45,63 @@ def test_a_block_that_is_not_positive_definite_is_refused():
     L[0, 0], L[1, 0], L[1, 1] = 4.0, 2.0, 5.0                # [[4, 2], [2, 5]] = LL'
     assert face_kept._cholesky_in_place(L, 2)
     np.testing.assert_allclose(np.tril(L[:2, :2]), [[2.0, 0.0], [1.0, 2.0]], atol=1e-15)
+
+
+def _kept_on(X, gamma, members, room, rng):
+    """A factor of K_SS + mu I on ``members`` in a kept array whose rows are in a shuffled
+    order (as after deletions), the unused rows NaN."""
+    kept = face_kept.KeptFactor(room)
+    kept.L[:] = np.nan
+    k = len(members)
+    block = _gaussian(X[members], X[members], gamma) + factor_core.RIDGE * np.eye(k)
+    kept.order[:] = rng.permutation(room)
+    kept.L[kept.order[:k], :k] = np.linalg.cholesky(block)          # numpy's, the reference
+    kept.members[:k] = members
+    return kept
+
+
+def _block_for(X, gamma, members, new):
+    B = np.empty((len(new), len(members) + len(new)))
+    K = _gaussian(X, X, gamma)
+    for q, j in enumerate(new):
+        factor_core._block_row(B, q, K[j], members, len(members), new, len(new))
+    return B
+
+
+def test_many_variables_added_in_one_pass_give_the_factor_of_the_larger_block():
+    # 13 new variables: three groups of four (the blocked loop) and one more
+    rng = np.random.default_rng(5)
+    X = rng.normal(size=(80, 2))
+    gamma = 2.0
+    members = rng.permutation(80)[:30]
+    new = np.setdiff1d(np.arange(80), members)[rng.permutation(50)[:13]]
+    kept = _kept_on(X, gamma, members, 64, rng)
+    B = _block_for(X, gamma, members, new)
+    m = len(members)
+    added = factor_core._append_block(kept.L, kept.order, m, kept.members, new, B, len(new))
+    assert added == len(new)
+    S = np.r_[members, new]
+    block = _gaussian(X[S], X[S], gamma) + factor_core.RIDGE * np.eye(len(S))
+    L = np.tril(kept.L[kept.order[:len(S)], :len(S)])
+    np.testing.assert_allclose(L, np.linalg.cholesky(block), rtol=0, atol=1e-12)  # numpy's
+    assert list(kept.members[:len(S)]) == list(S)
+
+
+def test_adding_many_stops_at_the_first_the_factor_refuses():
+    # the third new row is three times a kernel row against the members: no positive
+    # definite matrix with unit diagonal has it (its pivot^2 = 1 - 9 |L^-1 k|^2 < 0 here),
+    # so it and the two after it stay out, and the two before it are in
+    rng = np.random.default_rng(6)
+    X = rng.normal(size=(40, 2))
+    gamma = 1.0
+    members = np.arange(10)
+    new = np.array([20, 21, 22, 23, 24])
+    kept = _kept_on(X, gamma, members, 24, rng)
+    B = _block_for(X, gamma, members, new)
+    B[2, :len(members)] *= 3.0
+    added = factor_core._append_block(kept.L, kept.order, 10, kept.members, new, B, 5)
+    assert added == 2
+    S = np.r_[members, new[:2]]
+    block = _gaussian(X[S], X[S], gamma) + factor_core.RIDGE * np.eye(len(S))
+    L = np.tril(kept.L[kept.order[:len(S)], :len(S)])
+    np.testing.assert_allclose(L, np.linalg.cholesky(block), rtol=0, atol=1e-12)

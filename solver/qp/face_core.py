@@ -37,8 +37,8 @@ from __future__ import annotations
 import numba as nb
 import numpy as np
 
-from solver.qp.factor_core import (RIDGE, _append, _delete, _forward, _kept_solve, _kept_step,
-                                  _lu_solve, _remove, _solve)
+from solver.qp.factor_core import (RIDGE, _append, _append_block, _block_row, _delete, _forward,
+                                  _kept_solve, _kept_step, _lu_solve, _remove, _solve)
 from solver.qp.row_sums import _row
 from solver.qp.row_sums import catch_up as _catch_up
 
@@ -146,6 +146,8 @@ def face_steps(X, gamma, reach, y, upper, alpha, F, L, order, members, m, limit,
     change = np.empty(capacity)
     zF, z1, z_kept = np.zeros(capacity), np.zeros(capacity), False   # L^-1 F_S, L^-1 1
     wrong = np.zeros(n)
+    picked = np.empty(release, dtype=np.int64)          # released at a check, worst first
+    block = np.empty((release, capacity))               # their kernel values (_block_row)
     dense = False             # the factor was given up: each step solves afresh
     for r in range(m - 1, -1, -1):
         i = members[r]
@@ -337,17 +339,27 @@ def face_steps(X, gamma, reach, y, upper, alpha, F, L, order, members, m, limit,
             fresh[t] = False
         bounced = 0
         released = min(releasing, count)
+        if m + released > capacity:
+            return HAND_BACK, steps, counts[0], -1
         for k in range(released):
-            j = _take_largest(wrong)
-            fresh[j] = True
-            if m >= capacity:
-                return HAND_BACK, steps, counts[0], -1
-            added = _add(L, order, m, members, j,
-                         _row(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial,
-                              act, counts), dense, wide)
-            if added == NEITHER:
-                return HAND_BACK, steps, counts[0], -1
-            dense = added == DENSE
+            picked[k] = _take_largest(wrong)
+            fresh[picked[k]] = True
+        joined = 0            # to the factor together, one pass over L (_append_block)
+        if not dense:
+            for k in range(released):
+                _block_row(block, k, _row(picked[k], X, gamma, reach, rows, slot_of, owner,
+                                          stamp, clock, partial, act, counts),
+                           members, m, picked, released)
+            joined = _append_block(L, order, m, members, picked, block, released)
+        for k in range(released):
+            j = picked[k]
+            if k >= joined:   # one the factor refused, and those after it: as before
+                added = _add(L, order, m, members, j,
+                             _row(j, X, gamma, reach, rows, slot_of, owner, stamp, clock,
+                                  partial, act, counts), dense, wide)
+                if added == NEITHER:
+                    return HAND_BACK, steps, counts[0], -1
+                dense = added == DENSE
             in_S[j] = True
             FS[j] = F[j]
             m += 1

@@ -1,6 +1,7 @@
 """Compiled updates of a lower Cholesky factor K_SS = LL' kept for a changing set S.
 
-A variable joining S appends a row to L (one triangular solve); one leaving it is
+A variable joining S appends a row to L (one triangular solve; the variables a
+face step releases together share one pass over L, ``_append_block``); one leaving it is
 deleted (its row goes, and the block below is repaired by a rank-one update); a
 solve reads L by order, forward then backward.  Each costs O(|S|^2), where a fresh
 factor costs |S|^3 / 3.  Rows stay where they are: ``order[r]`` is the row of the
@@ -54,6 +55,66 @@ def _append(L, order, m, members, j, row_j):
     new[m] = math.sqrt(diagonal)
     members[m] = j
     return True
+
+
+@nb.njit(cache=True, nogil=True, fastmath=True)
+def _append_block(L, order, m, members, js, B, k):
+    """Add the k variables js[:k] to the factor at once, B[q, r] = k(js[q], members[r])
+    for r < m and B[q, m + p] = k(js[q], js[p]): one pass over L serves them all, where
+    _append reads it once per variable (a face step's release adds up to 16).  Returns
+    how many were added, in order: those from the first whose pivot is too small on
+    are not (k when all are)."""
+    for r in range(m):
+        row = L[order[r]]
+        inverse = 1.0 / row[r]
+        q = 0
+        while q + 4 <= k:               # four new rows per read of row r
+            n0, n1, n2, n3 = L[order[m + q]], L[order[m + q + 1]], L[order[m + q + 2]], \
+                L[order[m + q + 3]]
+            s0, s1, s2, s3 = 0.0, 0.0, 0.0, 0.0
+            for c in range(r):
+                value = row[c]
+                s0 += value * n0[c]
+                s1 += value * n1[c]
+                s2 += value * n2[c]
+                s3 += value * n3[c]
+            n0[r] = (B[q, r] - s0) * inverse
+            n1[r] = (B[q + 1, r] - s1) * inverse
+            n2[r] = (B[q + 2, r] - s2) * inverse
+            n3[r] = (B[q + 3, r] - s3) * inverse
+            q += 4
+        for q in range(q, k):
+            new = L[order[m + q]]
+            s = 0.0
+            for c in range(r):
+                s += row[c] * new[c]
+            new[r] = (B[q, r] - s) * inverse
+    for q in range(k):                  # the new rows among themselves
+        new = L[order[m + q]]
+        for p in range(q):
+            earlier = L[order[m + p]]
+            s = 0.0
+            for c in range(m + p):
+                s += earlier[c] * new[c]
+            new[m + p] = (B[q, m + p] - s) / earlier[m + p]
+        diagonal = 1.0 + RIDGE          # k_jj = 1 for the RBF kernel
+        for c in range(m + q):
+            diagonal -= new[c] * new[c]
+        if diagonal <= PIVOT:
+            return q
+        new[m + q] = math.sqrt(diagonal)
+        members[m + q] = js[q]
+    return k
+
+
+@nb.njit(cache=True, nogil=True)
+def _block_row(B, q, row, members, m, js, k):
+    """B[q] for _append_block from the kernel row of js[q]."""
+    target = B[q]
+    for r in range(m):
+        target[r] = row[members[r]]
+    for p in range(k):
+        target[m + p] = row[js[p]]
 
 
 @nb.njit(cache=True, nogil=True)

@@ -81,7 +81,10 @@ def test_a_block_larger_than_the_cache_is_computed_afresh():
 
 
 def test_fresh_memory_is_zeroed_writable_float64_and_goes_when_dropped():
+    gc.collect()
+    before = kernel_cache.MAPPED.now
     buffer = kernel_cache._fresh(3 * 2**17 + 5)       # an odd size, above SMALL
+    assert kernel_cache.MAPPED.now == before + 8 * buffer.size   # counted while alive
     assert buffer.dtype == np.float64 and buffer.size == 3 * 2**17 + 5
     assert buffer.flags.writeable and buffer.flags.c_contiguous
     assert not buffer.any()
@@ -91,3 +94,6 @@ def test_fresh_memory_is_zeroed_writable_float64_and_goes_when_dropped():
     del buffer
     gc.collect()
     mapped.close()        # raises BufferError while an array still uses the memory
+    del mapped
+    gc.collect()
+    assert kernel_cache.MAPPED.now == before

@@ -49,6 +49,7 @@ from solver.errors import ConvergenceError
 from solver.kernels import rbf_matrix
 from solver.kernels.polynomial import feature_map
 from solver.qp.face_kept import FACTORS
+from solver.qp.pair_rows import PAIR_BUFFERS
 from solver.qp.kernel_cache import BUFFERS, MAPPED, RECENT
 
 
@@ -192,6 +193,7 @@ def peak_memory(name, n, gamma, C):
     RECENT.clear()
     BUFFERS.clear()          # count the kernel-row buffer, which earlier fits left in the pool
     FACTORS.clear()          # ... and the face steps' factor
+    PAIR_BUFFERS.clear()     # ... and the pair steps' single rows (n above 2,000)
     gc.collect()
     MAPPED.reset_peak()
     tracemalloc.start()
@@ -201,7 +203,7 @@ def peak_memory(name, n, gamma, C):
     mapped = MAPPED.peak     # the row cache and the factor are mapped, which tracemalloc misses
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     print(f"peak memory {name} n={n:,} gamma={gamma:g} C={C:g}: {peak / 2**20:.0f} MiB traced "
-          f"(numpy) + {mapped / 2**20:.0f} MiB mapped (kernel rows, factor), process max RSS "
+          f"(numpy) + {mapped / 2**20:.0f} MiB mapped (kernel rows, single rows, factor), process max RSS "
           f"so far {rss:.0f} MiB; an n x n matrix would be {8 * n * n / 2**20:.0f} MiB",
           flush=True)
 

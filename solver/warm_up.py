@@ -1,7 +1,7 @@
 """Get the compiled parts of the solver ready before anyone waits for them.
 
 The RBF pair and face steps and kernel rows (``qp/smo_core.py``, ``qp/face_core.py``,
-``kernels/rbf_core.py``) are compiled by numba on their first call: 12-14 s on
+``kernels/rbf_core.py``) are compiled by numba on their first call: about 15 s on
 our 2-core test machines when its cache is empty, a fifth of a second when the
 compiled code is found in a cache (``python -m solver.warm_up``, which the
 Makefile's set-up runs, fills it).  ``prepare_kernel_solver`` makes
@@ -20,6 +20,7 @@ import numpy as np
 
 from solver.config import FitConfig
 from solver.fit import fit
+from solver.qp import pair_rows, smo
 
 # eight invented points: a ring of one class around a square of the other, which
 # no line separates, so the fit has free and bound support vectors alike
@@ -34,6 +35,12 @@ def prepare_kernel_solver() -> float:
     y = np.r_[np.ones(len(_RING), dtype=int), -np.ones(len(_CORE), dtype=int)]
     started = time.perf_counter()
     fit(X, y, _CONFIG)
+    # fits of many points run the pair steps on single rows (``qp/pair_rows.py``), which
+    # numba compiles apart: once more on the same points, with such rows
+    columns = smo.rbf_columns(X, _CONFIG.gamma)
+    columns.pair_rows = pair_rows.PairRows(len(X))
+    labels = y.astype(float)
+    smo.solve_rbf(X, labels, np.full(len(X), _CONFIG.C), _CONFIG.gamma, 1e-8, columns=columns)
     return time.perf_counter() - started
 
 

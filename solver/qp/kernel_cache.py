@@ -171,6 +171,7 @@ class KernelColumns:
         self.rbf_gamma = None           # set for an RBF kernel: compiled code computes rows
         self.reach = np.inf             # ... and reads them within this reach (point_order)
         self.kept_factor = None         # the face steps' last Cholesky factor (face_kept)
+        self.pair_rows = None           # the pair steps' rows in single precision (pair_rows)
 
     @property
     def nbytes(self) -> int:

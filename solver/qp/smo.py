@@ -40,6 +40,7 @@ from solver.qp.dual_start import feasible
 from solver.qp.face_factor import FaceFactor
 from solver.qp.face_system import NEAR_BOUND, face_system, step_in_box
 from solver.qp.kernel_cache import KernelColumns
+from solver.qp.pair_rows import rows_for_pair_steps
 
 log = logging.getLogger(__name__)
 
@@ -175,15 +176,20 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
 
 def _pair_steps(X, y, upper, gamma, alpha, F, eps, budget, columns):
     """(steps, violation, F): pair steps until the violation over all points is <= eps
-    (each time the searched ones meet it, F is computed afresh and all are checked)."""
+    (each time the searched ones meet it, F is computed afresh and all are checked).
+    On many points they read rows in single precision (``qp/pair_rows.py``); the F they
+    hand back is then computed afresh, in double precision, from alpha."""
+    rows = rows_for_pair_steps(columns)
     taken = 0
     while True:
         steps, violation, left_out = smo_core.smo_rbf(
             X, y, upper, gamma, columns.reach, alpha, F, eps, budget - taken,
-            columns.store, columns.slot, columns.owner, columns.stamp)
-        columns.clock = max(columns.clock, int(columns.stamp.max()))
+            rows.store, rows.slot, rows.owner, rows.stamp)
+        rows.clock = max(rows.clock, int(rows.stamp.max()))
         taken += int(steps)
         if not left_out:
+            if rows is not columns:
+                F = _fresh_F(columns, y, alpha)
             return taken, violation, F
         F = _fresh_F(columns, y, alpha)
         violation = certify.violation(F, y, alpha, upper)

@@ -35,6 +35,8 @@ from solver.qp.point_order import REACH
 
 TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
 FLOOR = -REACH       # kernel values below exp(FLOOR) are computed as 0 (point_order) ...
+SINGLE_FLOOR = -87.0 # ... and, in rows of singles (pair_rows.PairRows), below exp(-87) = 1.6e-38,
+                     # the smallest normal single
 
 
 @nb.njit(cache=True, nogil=True)
@@ -87,15 +89,17 @@ def floor(reach):
 
 @nb.njit(cache=True, nogil=True)
 def _rbf_row(X, i, gamma, reach, out, act, m):
-    """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X)); 0 beyond reach."""
+    """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X)); 0 beyond reach.
+    A row of singles (``pair_rows.PairRows``) holds the double values rounded once."""
     n, d = X.shape
     lo, hi = window(X, i, reach)
-    if m == n:
+    lowest = floor(reach) if out.itemsize == 8 else max(floor(reach), SINGLE_FLOOR)
+    if m == n and out.itemsize == 8:        # in place; singles are computed in doubles below
         out[:lo] = 0.0
         out[hi:] = 0.0
         part = out[lo:hi]
         scaled_distances(X[lo:hi], X[i], gamma, part)
-        exp_negative(part, np.empty(hi - lo, dtype=np.int64), floor(reach))
+        exp_negative(part, np.empty(hi - lo, dtype=np.int64), lowest)
         return
     first, last = _bisect(act, m, lo), _bisect(act, m, hi)
     for k in range(first):
@@ -110,7 +114,7 @@ def _rbf_row(X, i, gamma, reach, out, act, m):
             diff = X[t, c] - X[i, c]
             s += diff * diff
         values[k] = -gamma * s
-    exp_negative(values, np.empty(last - first, dtype=np.int64), floor(reach))
+    exp_negative(values, np.empty(last - first, dtype=np.int64), lowest)
     for k in range(first, last):
         out[act[k]] = values[k - first]
 

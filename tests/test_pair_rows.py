@@ -1,6 +1,6 @@
-"""Pair steps on kernel rows in single precision (solver.qp.pair_rows), used where the
-double rows do not all fit their cache; the finish and the certificate stay in double
-precision.
+"""Pair steps on kernel rows in single precision (solver.qp.pair_rows), used above
+pair_rows.SINGLE_FROM points and filled from the double rows, which the finish and the
+certificate read.
 
 Sources of the expected values, named beside each check:
 - K written out here from the formula exp(-gamma |a - b|^2) (common practice,
@@ -53,9 +53,18 @@ def test_pair_steps_on_single_rows_hand_back_F_in_double_precision():
         assert 0 < columns.pair_rows.owner.max()              # the steps read single rows
         exact = labels - K @ (alpha * labels)                 # F = y - K (alpha y)
         np.testing.assert_allclose(F, exact, rtol=0, atol=1e-12)
+    # every single row is its double row rounded, and the double rows they came from
+    # are whole, for the finish to read
+    singles = columns.pair_rows
+    assert columns.capacity == len(X)                         # no double row was given up
+    for s in np.flatnonzero(singles.owner >= 0):
+        i = singles.owner[s]
+        double = columns.store[columns.slot[i]]
+        np.testing.assert_array_equal(singles.store[s], double.astype(np.float32))
+        np.testing.assert_allclose(double, K[i], rtol=1e-14, atol=1e-300)
 
 
-def test_a_fit_whose_double_rows_do_not_all_fit_is_as_exact_as_any(monkeypatch):
+def test_a_fit_of_more_points_than_single_from_is_as_exact_as_any(monkeypatch):
     made = []
 
     class Counted(pair_rows.PairRows):
@@ -64,7 +73,7 @@ def test_a_fit_whose_double_rows_do_not_all_fit_is_as_exact_as_any(monkeypatch):
             super().__init__(n)
 
     monkeypatch.setattr(pair_rows, "PairRows", Counted)
-    monkeypatch.setattr(smo, "CACHE_BYTES", 2**21)     # 291 double rows of 900 (test-sized)
+    monkeypatch.setattr(pair_rows, "SINGLE_FROM", 800)         # a test-sized threshold
     kernel_cache.RECENT.clear()
     X, y = _blobs(900)
     for gamma, C in ((2.0, 1.0), (10.0, 100.0)):

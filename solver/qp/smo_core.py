@@ -126,18 +126,43 @@ def _slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, 
     and the row is marked partial."""
     s = slot_of[i]
     if s < 0:
-        s = 0
-        oldest = stamp[0]
-        for k in range(1, len(stamp)):
-            if stamp[k] < oldest:
-                oldest = stamp[k]
-                s = k
-        if owner[s] >= 0:
-            slot_of[owner[s]] = -1
-        owner[s] = i
-        slot_of[i] = s
+        s = _oldest_to(i, slot_of, owner, stamp)
         _rbf_row(X, i, gamma, reach, rows[s], act, m)
         partial[s] = m < len(X)
+    stamp[s] = clock
+    return s
+
+
+@nb.njit(cache=True, nogil=True)
+def _oldest_to(i, slot_of, owner, stamp):
+    """The least recently used slot, given to i (its last owner forgets it)."""
+    s = 0
+    oldest = stamp[0]
+    for k in range(1, len(stamp)):
+        if stamp[k] < oldest:
+            oldest = stamp[k]
+            s = k
+    if owner[s] >= 0:
+        slot_of[owner[s]] = -1
+    owner[s] = i
+    slot_of[i] = s
+    return s
+
+
+@nb.njit(cache=True, nogil=True)
+def _single_slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles, d_slot,
+                 d_owner, d_stamp, partial, act):
+    """The row of singles holding k(x_i, .) (``pair_rows``): on a miss, the double row
+    rounded, which is first computed whole into the double rows when absent there, so
+    that the finish and F afresh find it."""
+    s = slot_of[i]
+    if s < 0:
+        s = _oldest_to(i, slot_of, owner, stamp)
+        d = _slot(i, X, gamma, reach, doubles, d_slot, d_owner, d_stamp, clock, partial, act,
+                  len(X))
+        target, source = rows[s], doubles[d]
+        for t in range(len(source)):
+            target[t] = source[t]
     stamp[s] = clock
     return s
 
@@ -242,13 +267,17 @@ def _update_whole(F, act, m, up, low, step, row_i, row_j):
 
 
 @nb.njit(cache=True, nogil=True)
-def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owner, stamp):
+def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owner, stamp,
+            single, doubles, d_slot, d_owner, d_stamp):
     """Pair steps until max(F over up) - min(F over low) <= eps over the variables still
     searched, or max_steps.
 
     alpha and F are updated in place; F of variables left out by shrinking is
     not kept up to date (the caller computes F afresh when ``left_out``).
-    Returns (steps, violation over the searched ones, left_out).
+    Returns (steps, violation over the searched ones, left_out).  ``single``: the
+    rows read are singles (``pair_rows``) filled from the double rows ``doubles``
+    (a KernelColumns' arrays, whole rows only); else they are those, and the
+    d_ arrays the same ones.
     """
     n = len(y)
     up = np.zeros(n, dtype=nb.boolean)
@@ -259,15 +288,17 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
     m = n
     shrink_every = min(n, 200)
     countdown = shrink_every
-    clock = stamp.max() + 1
-    partial = np.zeros(len(owner), dtype=nb.boolean)
+    clock = max(stamp.max(), d_stamp.max()) + 1
+    partial = np.zeros(len(d_owner), dtype=nb.boolean)
     steps = 0
     f_up, i, f_low, lowest = _extremes(F, act, m, up, low)
     while True:
         violation = f_up - f_low
         if i < 0 or violation <= eps or steps >= max_steps:
             break
-        si = _slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
+        si = _single_slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles,
+                          d_slot, d_owner, d_stamp, partial, act) if single else \
+            _slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
         k_ii = row_i[i]
@@ -286,7 +317,9 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         best, j = _best_pair(F, act, first, last, low, f_up, row_i, k_ii, best, j)
         if j < 0:
             break
-        sj = _slot(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
+        sj = _single_slot(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles,
+                          d_slot, d_owner, d_stamp, partial, act) if single else \
+            _slot(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
         clock += 1
         row_i = rows[si]
         row_j = rows[sj]
@@ -328,7 +361,7 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         if countdown <= 0:
             countdown = shrink_every
             m = _shrink(F, act, m, up, low, f_up, f_low)
-    _drop_partial(slot_of, owner, stamp, partial)
+    _drop_partial(d_slot, d_owner, d_stamp, partial)
     return steps, violation, m < n
 
 

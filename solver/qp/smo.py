@@ -184,7 +184,7 @@ def _pair_steps(X, y, upper, gamma, alpha, F, eps, budget, columns):
     while True:
         steps, violation, left_out = smo_core.smo_rbf(
             X, y, upper, gamma, columns.reach, alpha, F, eps, budget - taken,
-            rows.store, rows.slot, rows.owner, rows.stamp, rows is not columns,
+            rows.store, rows.slot, rows.owner, rows.stamp,
             columns.store, columns.slot, columns.owner, columns.stamp)
         rows.clock = max(rows.clock, int(rows.stamp.max()))
         columns.clock = max(columns.clock, int(columns.stamp.max()))

@@ -29,6 +29,8 @@ from __future__ import annotations
 
 import numba as nb
 import numpy as np
+from numba.core import types
+from numba.extending import overload
 
 from solver.kernels.rbf_core import UNDERFLOW, exp_negative, scaled_distances
 from solver.qp.point_order import REACH
@@ -136,12 +138,7 @@ def _slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, 
 @nb.njit(cache=True, nogil=True)
 def _oldest_to(i, slot_of, owner, stamp):
     """The least recently used slot, given to i (its last owner forgets it)."""
-    s = 0
-    oldest = stamp[0]
-    for k in range(1, len(stamp)):
-        if stamp[k] < oldest:
-            oldest = stamp[k]
-            s = k
+    s = int(np.argmin(stamp))
     if owner[s] >= 0:
         slot_of[owner[s]] = -1
     owner[s] = i
@@ -165,6 +162,31 @@ def _single_slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles
             target[t] = source[t]
     stamp[s] = clock
     return s
+
+
+def _fetch(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles, d_slot, d_owner,
+           d_stamp, partial, act, m):
+    """The pair steps' slot of k(x_i, .): _single_slot for rows of singles, else _slot,
+    chosen by the rows' type when numba compiles (``_fetch_for``): the double-row steps,
+    where every fit on a fresh machine starts, then do not compile the single-row fetch
+    (which made their first compilation 2.5 s longer, first_fit_bench)."""
+    raise NotImplementedError("compiled code only")
+
+
+@overload(_fetch)
+def _fetch_for(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles, d_slot,
+               d_owner, d_stamp, partial, act, m):
+    if rows.dtype == types.float32:
+        def single(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles, d_slot,
+                   d_owner, d_stamp, partial, act, m):
+            return _single_slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock,
+                                doubles, d_slot, d_owner, d_stamp, partial, act)
+        return single
+
+    def double(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles, d_slot, d_owner,
+               d_stamp, partial, act, m):
+        return _slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
+    return double
 
 
 @nb.njit(cache=True, nogil=True)
@@ -268,16 +290,16 @@ def _update_whole(F, act, m, up, low, step, row_i, row_j):
 
 @nb.njit(cache=True, nogil=True)
 def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owner, stamp,
-            single, doubles, d_slot, d_owner, d_stamp):
+            doubles, d_slot, d_owner, d_stamp):
     """Pair steps until max(F over up) - min(F over low) <= eps over the variables still
     searched, or max_steps.
 
     alpha and F are updated in place; F of variables left out by shrinking is
     not kept up to date (the caller computes F afresh when ``left_out``).
-    Returns (steps, violation over the searched ones, left_out).  ``single``: the
-    rows read are singles (``pair_rows``) filled from the double rows ``doubles``
-    (a KernelColumns' arrays, whole rows only); else they are those, and the
-    d_ arrays the same ones.
+    Returns (steps, violation over the searched ones, left_out).  The rows read are
+    singles (``pair_rows``) filled from the double rows ``doubles``
+    (a KernelColumns' arrays, whole rows only) when ``rows`` holds singles; else
+    ``rows`` are those, and the d_ arrays the same ones.
     """
     n = len(y)
     up = np.zeros(n, dtype=nb.boolean)
@@ -296,9 +318,8 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         violation = f_up - f_low
         if i < 0 or violation <= eps or steps >= max_steps:
             break
-        si = _single_slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles,
-                          d_slot, d_owner, d_stamp, partial, act) if single else \
-            _slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
+        si = _fetch(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles, d_slot,
+                    d_owner, d_stamp, partial, act, m)
         clock += 1
         row_i = rows[si]
         k_ii = row_i[i]
@@ -317,9 +338,8 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         best, j = _best_pair(F, act, first, last, low, f_up, row_i, k_ii, best, j)
         if j < 0:
             break
-        sj = _single_slot(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles,
-                          d_slot, d_owner, d_stamp, partial, act) if single else \
-            _slot(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, m)
+        sj = _fetch(j, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles, d_slot,
+                    d_owner, d_stamp, partial, act, m)
         clock += 1
         row_i = rows[si]
         row_j = rows[sj]

@@ -22,19 +22,20 @@ def test_a_single_row_is_the_kernel_rounded_and_zero_below_the_smallest_normal()
     X, _ = _blobs(500)
     gamma = 40.0               # wide enough apart that some values fall below 1e-38
     exact = _gaussian(X[[7]], X, gamma)[0]
-    single = np.empty(len(X), dtype=np.float32)
-    everyone = np.arange(len(X))
-    smo_core._rbf_row(X, 7, gamma, np.inf, single, everyone, len(X))
-    normal = exact >= 1e-37
-    assert (~normal).any() and normal.sum() > 10
+    columns = smo.rbf_columns(X, gamma)                       # the double rows
+    singles = pair_rows.PairRows(len(X))
+    partial = np.zeros(columns.capacity, dtype=bool)
+    s = smo_core._single_slot(7, X, gamma, columns.reach, singles.store, singles.slot,
+                              singles.owner, singles.stamp, 1, columns.store, columns.slot,
+                              columns.owner, columns.stamp, partial, np.arange(len(X)))
+    single = singles.store[s]
+    normal = exact >= 2.0**-126                               # the smallest normal single
+    assert (~normal & (exact > 0)).any() and normal.sum() > 10
     # the double value rounded once: within 2^-24 of it, and a hair for the exp's 1.5 ulp
     np.testing.assert_allclose(single[normal], exact[normal], rtol=2.0**-24 + 1e-15, atol=0)
-    assert not single[exact < np.exp(-87.0)].any()           # no subnormal single
-    # the searched points only (shrinking): the same values there
-    searched = everyone[::3]
-    part = np.full(len(X), -1.0, dtype=np.float32)
-    smo_core._rbf_row(X, 7, gamma, np.inf, part, searched, len(searched))
-    np.testing.assert_array_equal(part[searched], single[searched])
+    assert not single[~normal].any()                          # no subnormal single
+    # the whole double row is in the double rows, for the finish
+    np.testing.assert_allclose(columns.store[columns.slot[7]], exact, rtol=1e-14, atol=1e-300)
 
 
 def test_pair_steps_on_single_rows_hand_back_F_in_double_precision():

@@ -39,7 +39,7 @@ class PairRows:
     The pair steps only approach the optimum (to a violation of 1e-3, 1e-4): their
     rows' rounding, 6e-8 of each value, moves F by far less, and the finish and the
     certificate read F computed afresh in double precision (``smo._fresh_F``, from the
-    double rows of the KernelColumns).  Values below exp(``smo_core.SINGLE_FLOOR``)
+    double rows of the KernelColumns).  Values below ``smo_core.SINGLE_LEAST``
     are 0: no subnormal single ever reaches the loops.
     """
 

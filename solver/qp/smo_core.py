@@ -37,8 +37,8 @@ from solver.qp.point_order import REACH
 
 TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
 FLOOR = -REACH       # kernel values below exp(FLOOR) are computed as 0 (point_order) ...
-SINGLE_FLOOR = -87.0 # ... and, in rows of singles (pair_rows.PairRows), below exp(-87) = 1.6e-38,
-                     # the smallest normal single
+SINGLE_LEAST = 1.2e-38   # rows of singles (pair_rows) hold 0 below the smallest normal
+                         # single, 2^-126 = 1.18e-38: no subnormal reaches the loops
 
 
 @nb.njit(cache=True, nogil=True)
@@ -91,17 +91,15 @@ def floor(reach):
 
 @nb.njit(cache=True, nogil=True)
 def _rbf_row(X, i, gamma, reach, out, act, m):
-    """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X)); 0 beyond reach.
-    A row of singles (``pair_rows.PairRows``) holds the double values rounded once."""
+    """out[t] = k(x_i, x_t) for t in act[:m] (every t when m is len(X)); 0 beyond reach."""
     n, d = X.shape
     lo, hi = window(X, i, reach)
-    lowest = floor(reach) if out.itemsize == 8 else max(floor(reach), SINGLE_FLOOR)
-    if m == n and out.itemsize == 8:        # in place; singles are computed in doubles below
+    if m == n:
         out[:lo] = 0.0
         out[hi:] = 0.0
         part = out[lo:hi]
         scaled_distances(X[lo:hi], X[i], gamma, part)
-        exp_negative(part, np.empty(hi - lo, dtype=np.int64), lowest)
+        exp_negative(part, np.empty(hi - lo, dtype=np.int64), floor(reach))
         return
     first, last = _bisect(act, m, lo), _bisect(act, m, hi)
     for k in range(first):
@@ -116,7 +114,7 @@ def _rbf_row(X, i, gamma, reach, out, act, m):
             diff = X[t, c] - X[i, c]
             s += diff * diff
         values[k] = -gamma * s
-    exp_negative(values, np.empty(last - first, dtype=np.int64), lowest)
+    exp_negative(values, np.empty(last - first, dtype=np.int64), floor(reach))
     for k in range(first, last):
         out[act[k]] = values[k - first]
 
@@ -150,8 +148,8 @@ def _oldest_to(i, slot_of, owner, stamp):
 def _single_slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles, d_slot,
                  d_owner, d_stamp, partial, act):
     """The row of singles holding k(x_i, .) (``pair_rows``): on a miss, the double row
-    rounded, which is first computed whole into the double rows when absent there, so
-    that the finish and F afresh find it."""
+    rounded (0 below SINGLE_LEAST), which is first computed whole into the double rows
+    when absent there, so that the finish and F afresh find it."""
     s = slot_of[i]
     if s < 0:
         s = _oldest_to(i, slot_of, owner, stamp)
@@ -159,7 +157,8 @@ def _single_slot(i, X, gamma, reach, rows, slot_of, owner, stamp, clock, doubles
                   len(X))
         target, source = rows[s], doubles[d]
         for t in range(len(source)):
-            target[t] = source[t]
+            value = source[t]
+            target[t] = value if value >= SINGLE_LEAST else 0.0
     stamp[s] = clock
     return s
 

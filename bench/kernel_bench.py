@@ -2,14 +2,15 @@
 
 Every cell: four data shapes (overlapping blobs, curved classes, rings,
 clusters of different density), standardised; gamma in {0.1, 0.5, 2, 10, 50},
-C in {1, 100}; n in {1,000, 5,000, 10,000}.  Printed per cell: our whole-call
+C in {1, 100}; n in {1,000, 5,000} and, on the blobs, 10,000.  Printed per cell: our whole-call
 wall time, SVC's (default tol=1e-3) on the same data in the same run, the
 ratio SVC / ours (above 1: we are faster), both dual objectives
 D = 1'a - 1/2 a'Qa (SVC's from its dual coefficients; ours is the larger or
 equal one when exact), our relative duality gap and rounds (on the RBF fast
-path: stages of pair steps, 0 when warm face steps alone finished).  Then
-polynomial kernels (degree 2 and 3) on the blobs at every n, warm steps at
-n = 1,000 (C +10%, gamma +10%) and the peak memory of the largest cell.  Fits after
+path: stages of pair steps, 0 when warm face steps alone finished); after the
+grid, the cells short of their target.  Then polynomial kernels (degree 2 and 3)
+on the blobs at every n, warm steps at n = 1,000 (C +10%, gamma +10%) and the
+peak memory of the largest cell.  Fits after
 the first in a run reuse the kernel-row buffer the previous one handed back
 (``kernel_cache.BUFFERS``), as fits in the window do; the first pays the page
 faults of fresh memory (about 0.05 s for 200 MiB in small pages,
@@ -22,8 +23,8 @@ Environment (to shrink the grid for a quick look):
   KERNEL_BENCH_SHAPES   e.g. "blobs,moons" (default all four)
   KERNEL_BENCH_GAMMAS   e.g. "0.5,10" (default "0.1,0.5,2,10,50")
   KERNEL_BENCH_CS       e.g. "1" (default "1,100")
-  KERNEL_BENCH_LARGE_SHAPES  shapes run at n > 1,000 (default "blobs": the narrow-kernel
-                        cells at n = 10,000 take minutes)
+  KERNEL_BENCH_LARGE_SHAPES  shapes run at n > 5,000 (default "blobs": the narrow-kernel
+                        cells at n = 10,000 take minutes; every shape runs up to 5,000)
   KERNEL_BENCH_PROFILE  "1": after each cell short of its target (n = 1,000: ratio
                         below 0.5; larger n: below 1), the top of a cProfile of our fit
 """
@@ -123,7 +124,7 @@ def cell(name, n, gamma, C):
     print(f"{name:<8} {n:>6,} {gamma:>5g} {C:>5g} {ours * 1e3:>9.1f} {theirs * 1e3:>9.1f} "
           f"{theirs / ours:>6.2f} {d_ours:>15.8f} {d_svc:>15.8f} {gap:>8.1e} {rounds:>4} {note}",
           flush=True)
-    if os.environ.get("KERNEL_BENCH_PROFILE") == "1" and theirs / ours < (0.5 if n <= 1_000 else 1.0):
+    if os.environ.get("KERNEL_BENCH_PROFILE") == "1" and theirs / ours < _target(n):
         _profile(X, y, config)
     return theirs / ours
 
@@ -208,6 +209,11 @@ def peak_memory(name, n, gamma, C):
           flush=True)
 
 
+def _target(n):
+    """The least ratio SVC / ours issue 13 asks for: within 2x at n = 1,000, ahead above."""
+    return 0.5 if n <= 1_000 else 1.0
+
+
 def main():
     sizes = _env_list("KERNEL_BENCH_N", "1000,5000,10000", int)
     shapes = _env_list("KERNEL_BENCH_SHAPES", "blobs,moons,rings,density", str)
@@ -220,7 +226,7 @@ def main():
           f"{'ratio':>6} {'D ours':>15} {'D SVC':>15} {'gap':>8} {'rnds':>4}")
     ratios = {}
     for n in sizes:
-        for name in (shapes if n <= 1_000 else [s for s in shapes if s in large]):
+        for name in (shapes if n <= 5_000 else [s for s in shapes if s in large]):
             for gamma in gammas:
                 for C in Cs:
                     ratios[(name, n, gamma, C)] = cell(name, n, gamma, C)
@@ -229,6 +235,10 @@ def main():
         if values:
             print(f"n={n:,}: SVC/ours min {min(values):.2f}, median "
                   f"{statistics.median(values):.2f} over {len(values)} cells")
+    short = [f"{name} n={n:,} gamma {gamma:g} C {C:g} ({r:.2f})"
+             for (name, n, gamma, C), r in ratios.items() if r < _target(n)]
+    print("short of the target (n = 1,000: ratio 0.5; larger n: 1): "
+          + ("; ".join(short) if short else "none"))
     polynomial_cells(sizes)
     warm_steps()
     peak_memory("blobs", max(sizes), 0.5, 1.0)

@@ -33,6 +33,8 @@ from numba.core import types
 from numba.extending import overload
 
 from solver.kernels.rbf_core import UNDERFLOW, exp_negative, scaled_distances
+from solver.qp.pair_extremes import (best_beyond, blocks, combine, summarise, update_blocks,
+                                    update_whole)
 from solver.qp.point_order import REACH
 
 TAU = 1e-12          # curvature floor for a pair of (nearly) coincident points
@@ -213,12 +215,6 @@ def _sides(y, C, alpha, t, up, low):
 
 
 @nb.njit(cache=True, nogil=True)
-def _extremes(F, act, m, up, low):
-    """(largest F over up, its index, smallest F over low, its index) on act[:m]."""
-    return _extremes_from(F, act, 0, m, up, low, -np.inf, -1, np.inf, -1)
-
-
-@nb.njit(cache=True, nogil=True)
 def _best_pair(F, act, first, last, low, f_up, row_i, k_ii, best, j):
     """The best j so far (largest gain^2 / curvature) and its score, over act[first:last]."""
     for t in act[first:last]:
@@ -232,59 +228,6 @@ def _best_pair(F, act, first, last, low, f_up, row_i, k_ii, best, j):
                 if score > best:
                     best, j = score, t
     return best, j
-
-
-@nb.njit(cache=True, nogil=True)
-def _best_beyond(F, act, first, last, low, f_up, k_ii, best, j):
-    """_best_pair over points beyond reach of i, where k_it is taken as 0."""
-    curvature = max(k_ii + 1.0, TAU)
-    for t in act[first:last]:
-        if low[t]:
-            gain = f_up - F[t]
-            if gain > 0.0:
-                score = gain * gain / curvature
-                if score > best:
-                    best, j = score, t
-    return best, j
-
-
-@nb.njit(cache=True, nogil=True)
-def _extremes_from(F, act, first, last, up, low, f_up, i, f_low, j):
-    """_extremes over act[first:last], carried on from (f_up, i, f_low, j)."""
-    for t in act[first:last]:
-        if up[t] and F[t] > f_up:
-            f_up, i = F[t], t
-        if low[t] and F[t] < f_low:
-            f_low, j = F[t], t
-    return f_up, i, f_low, j
-
-
-@nb.njit(cache=True, nogil=True)
-def _update(F, act, first, last, up, low, step, row_i, row_j, f_up, i, f_low, j):
-    """F -= step (k_i - k_j) over act[first:last], and _extremes_from there."""
-    for t in act[first:last]:
-        value = F[t] - step * (row_i[t] - row_j[t])
-        F[t] = value
-        if up[t] and value > f_up:
-            f_up, i = value, t
-        if low[t] and value < f_low:
-            f_low, j = value, t
-    return f_up, i, f_low, j
-
-
-@nb.njit(cache=True, nogil=True)
-def _update_whole(F, act, m, up, low, step, row_i, row_j):
-    """F -= step (k_i - k_j) over act[:m], and _extremes there."""
-    f_up, i, f_low = -np.inf, -1, np.inf
-    for k in range(m):
-        t = act[k]
-        value = F[t] - step * (row_i[t] - row_j[t])
-        F[t] = value
-        if up[t] and value > f_up:
-            f_up, i = value, t
-        if low[t] and value < f_low:
-            f_low = value
-    return f_up, i, f_low
 
 
 @nb.njit(cache=True, nogil=True)
@@ -312,7 +255,9 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
     clock = max(stamp.max(), d_stamp.max()) + 1
     partial = np.zeros(len(d_owner), dtype=nb.boolean)
     steps = 0
-    f_up, i, f_low, lowest = _extremes(F, act, m, up, low)
+    top, top_at, bottom, bottom_at = blocks(n)          # the extremes per block (pair_extremes)
+    summarise(F, act, m, up, low, top, top_at, bottom, bottom_at)
+    f_up, i, f_low, lowest = combine(m, top, top_at, bottom, bottom_at)
     while True:
         violation = f_up - f_low
         if i < 0 or violation <= eps or steps >= max_steps:
@@ -327,9 +272,11 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
             lo_i, hi_i = window(X, i, reach)
             first, last = _bisect(act, m, lo_i), _bisect(act, m, hi_i)
         best, j = 0.0, -1
-        if lo_i <= lowest < hi_i or not reach < np.inf:
-            best, j = _best_beyond(F, act, 0, first, low, f_up, k_ii, best, j)
-            best, j = _best_beyond(F, act, last, m, low, f_up, k_ii, best, j)
+        if not reach < np.inf:
+            pass                               # every point within reach
+        elif lo_i <= lowest < hi_i:            # beyond reach k_it = 0: one curvature
+            best, j = best_beyond(F, act, m, first, last, low, f_up, max(k_ii + 1.0, TAU),
+                                  bottom)
         elif f_up - f_low > 0.0:
             # beyond reach k_it = 0: the curvature is k_ii + 1 for all, and the best
             # there is the smallest F over low
@@ -367,19 +314,18 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
             lo_j, hi_j = window(X, j, reach)
             first = _bisect(act, m, min(lo_i, lo_j))
             last = _bisect(act, m, max(hi_i, hi_j))
-            f_up, i, f_low, lowest = _extremes_from(F, act, 0, first, up, low, -np.inf, -1,
-                                                    np.inf, -1)
-            f_up, i, f_low, lowest = _update(F, act, first, last, up, low, step, row_i,
-                                             row_j, f_up, i, f_low, lowest)
-            f_up, i, f_low, lowest = _extremes_from(F, act, last, m, up, low, f_up, i,
-                                                    f_low, lowest)
+            update_blocks(F, act, m, first, last, up, low, step, row_i, row_j, top, top_at,
+                          bottom, bottom_at)
+            f_up, i, f_low, lowest = combine(m, top, top_at, bottom, bottom_at)
         else:           # every row read whole: no need of where the smallest F is
-            f_up, i, f_low = _update_whole(F, act, m, up, low, step, row_i, row_j)
+            f_up, i, f_low = update_whole(F, act, m, up, low, step, row_i, row_j)
         steps += 1
         countdown -= 1
         if countdown <= 0:
             countdown = shrink_every
             m = _shrink(F, act, m, up, low, f_up, f_low)
+            if reach < np.inf:
+                summarise(F, act, m, up, low, top, top_at, bottom, bottom_at)
     _drop_partial(d_slot, d_owner, d_stamp, partial)
     return steps, violation, m < n
 

@@ -13,6 +13,7 @@ import pytest
 
 from solver import FitConfig, fit
 from solver.qp import pair_extremes as pe
+from solver.qp import point_order
 
 from test_kernel_fits import _reference_check
 
@@ -111,12 +112,13 @@ def test_equal_scores_from_unequal_values_go_to_the_first_in_order():
         assert pe.best_beyond(F, act, n, first, last, low, f_up, curvature, bottom) == expected
 
 
-@pytest.mark.parametrize("gamma, C", [(50.0, 1.0), (10.0, 100.0)])
+@pytest.mark.parametrize("gamma, C", [(50.0, 1.0), (30.0, 100.0)])
 def test_narrow_kernel_fits_on_blocks_pass_the_reference(gamma, C):
     # narrow kernels (finite reach) are where the blocks serve; SVC at tol=1e-10
     rng = np.random.default_rng(3)
     X = np.vstack([rng.normal(-0.4, 1.0, (300, 2)), rng.normal(0.4, 1.0, (300, 2))])
     y = np.r_[-np.ones(300), np.ones(300)]
     X = (X - X.mean(0)) / X.std(0)
+    assert point_order.reach(X[np.argsort(X[:, 0])], gamma) < np.inf
     result = fit(X, y, FitConfig(C=C, kernel="rbf", gamma=gamma))
     _reference_check(X, y, result, C, gamma)

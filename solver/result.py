@@ -206,6 +206,15 @@ class FitResult:
         """f evaluated anywhere (original units)."""
         return self.model.decision_function(points)
 
+    @property
+    def has_gradient(self) -> bool:
+        """Whether ``decision_gradient`` is exact (Gaussian kernel fits)."""
+        return self.model.has_gradient
+
+    def decision_gradient(self, points) -> np.ndarray:
+        """grad f evaluated anywhere (original units); Gaussian kernel fits only."""
+        return self.model.gradient(points)
+
     def predict(self, points) -> np.ndarray:
         """Sign of f: +1 or -1 (0 maps to +1)."""
         return np.where(self.decision_function(points) >= 0, 1, -1)

@@ -17,7 +17,7 @@ import pytest
 from app.canvas import geometry
 from app.canvas.figure_data import figure_geometry
 from cli import render
-from solver import fit
+from solver import FitConfig, fit
 from solver.files.bundled import samples
 from solver.files.experiment import load_experiment
 
@@ -164,3 +164,50 @@ def test_render_into_a_missing_folder_says_so_in_one_line(tmp_path, capsys):
     assert main(["render", str(samples() / SAMPLES[0]), "-o", str(target)]) == 2
     err = capsys.readouterr().err.strip()
     assert len(err.splitlines()) == 1 and "figure.json" in err and "Traceback" not in err
+
+
+def test_a_gaussian_fits_own_gradient_is_the_central_difference_of_f():
+    # derivation: grad f = lim (f(x + h e_k) - f(x - h e_k)) / 2h; z-scored features
+    # make the chain rule through the scaling count (gradient / scale)
+    rng = np.random.default_rng(4)
+    X = rng.normal(size=(150, 2)) * [3.0, 0.5] + [10.0, 2.0]
+    y = np.where(X[:, 0] - 10.0 + rng.normal(size=150) > 0, 1, -1)
+    result = fit(X, y, FitConfig(kernel="rbf", gamma=2.0, C=1.0, scaling="zscore"))
+    P = rng.normal(size=(40, 2)) * [3.0, 0.5] + [10.0, 2.0]
+    steps = np.array([3e-6, 5e-7])
+    central = geometry.gradient(result.decision_function, P, steps)
+    assert result.has_gradient
+    np.testing.assert_allclose(result.decision_gradient(P), central, rtol=0, atol=1e-7)
+    linear = fit(X, y, FitConfig(kernel="linear", C=1.0))
+    assert not linear.has_gradient
+    with pytest.raises(ValueError):
+        linear.decision_gradient(P)
+
+
+def test_slack_targets_by_the_fits_gradient_land_on_the_own_margin_edge():
+    rng = np.random.default_rng(5)
+    X = rng.normal(size=(300, 2))
+    y = np.where(X[:, 0] + 0.8 * rng.normal(size=300) > 0, 1, -1)
+    result = fit(X, y, FitConfig(kernel="rbf", gamma=20.0, C=1.0))
+    points, starts, ends = geometry.slack_of(result, geometry.padded_bounds(X))
+    assert len(points) > 50
+    np.testing.assert_array_equal(starts, X[points])
+    np.testing.assert_allclose(result.decision_function(ends), y[points], rtol=0, atol=1e-9)
+
+
+def test_points_that_no_halving_moves_are_not_tried_again():
+    # f = -x^2 never reaches 1; at x = 0 its gradient is 0, so no step moves the point:
+    # its 8 halvings fail once, and then it is left alone (before: 40 iterations of them)
+    calls = []
+
+    def f(points):
+        calls.append(len(points))
+        return -np.asarray(points)[:, 0] ** 2
+
+    start = np.array([[0.0, 0.0], [0.0, 1.0], [0.0, -3.0]])
+    moved, converged = geometry.newton_to_level(
+        f, start, 1.0, np.array([1e-5, 1e-5]), 1.0,
+        grad=lambda p: np.c_[-2.0 * np.asarray(p)[:, 0], np.zeros(len(p))])
+    assert not converged.any()
+    np.testing.assert_array_equal(moved, start)
+    assert len(calls) == 1 + 8              # the first f, then one round of halvings

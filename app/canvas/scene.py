@@ -155,11 +155,12 @@ class SceneItems:
             self._legend_lists_fit(None)
             return
         matches = len(result.y) == len(X) and np.array_equal(result.X, X)
-        shape = self._draw_field(result, rect)
+        self._draw_field(result, rect)
         if matches:
             support = result.X[result.support]
             self.rings.setData(x=support[:, 0], y=support[:, 1], data=result.support)
-            self._draw_slack(shape)
+            _, starts, ends = geometry.slack_of(result, rect)
+            self._draw_slack(starts, ends)
         else:
             self.rings.setData([], [])
             self.slack.setData([], [])
@@ -201,7 +202,7 @@ class SceneItems:
             self.ghost_boundary.setData([], [])
             self.ghost_band.setData([], [])
             return
-        shape = geometry.fit_geometry(pinned, rect, project=False)
+        shape = geometry.fit_geometry(pinned, rect, project=False, slack=False)
         _show_lines(self.ghost_boundary, shape.boundary)
         _show_lines(self.ghost_band, shape.band_positive + shape.band_negative)
 
@@ -232,13 +233,12 @@ class SceneItems:
         # the live picture keeps the lattice's contours (exact for linear fits);
         # `slackline render -o figure.json` projects them onto the level sets
         shape = geometry.fit_geometry(result, rect, grid_values=(xs, ys, values),
-                                      project=False)
+                                      project=False, slack=False)
         _show_lines(self.boundary, shape.boundary)
         _show_lines(self.band, shape.band_positive + shape.band_negative)
-        return shape
 
-    def _draw_slack(self, shape):
-        pairs = geometry.slack_segments(shape.slack_from, shape.slack_to)
+    def _draw_slack(self, starts, ends):
+        pairs = geometry.slack_segments(starts, ends)
         pairs = pairs[~np.isnan(pairs[:, 0])]
         self.slack.setData(pairs[:, 0], pairs[:, 1])
 

@@ -92,3 +92,19 @@ def test_the_compare_tables_show_at_least_six_rows_at_1280_by_800(window, qtbot)
         rows = table.viewport().height() // table.verticalHeader().defaultSectionSize()
         assert rows >= 6
     assert tabs.currentWidget() is panel
+
+
+def test_read_outs_that_grow_with_the_data_wrap_instead_of_losing_their_end(window, qtbot):
+    # a 5,000-point kernel fit's solve time ran past the Summary's edge at 1280 x 800
+    # ("474.0 ms, 18231 iteration", the last letter cut); a wrapped label shows it all
+    load_points(window, qtbot, gauge_points())
+    settle(window, qtbot)
+    for key, text in (("time", "474.0 ms, 18231 iterations"),
+                      ("error", "22.4%  (2241 of 10000)"),
+                      ("breakdown", "12001 / 11300 / 11220")):
+        label = window.summary.values[key]
+        label.setText(text)
+        qtbot.wait(20)
+        shown = label.fontMetrics().boundingRect(label.contentsRect(), Qt.TextWordWrap, text)
+        assert shown.width() <= label.contentsRect().width()
+        assert shown.height() <= label.contentsRect().height(), key

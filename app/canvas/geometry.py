@@ -122,7 +122,8 @@ def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iteration
         norm2 = np.maximum(np.einsum("ij,ij->i", g, g), 1e-300)
         step = (residual[active] / norm2)[:, None] * g
         length = np.linalg.norm(step, axis=1)
-        step *= np.minimum(1.0, max_step / np.maximum(length, 1e-300))[:, None]
+        with np.errstate(over="ignore"):      # a huge max_step over a tiny step: factor 1
+            step *= np.minimum(1.0, max_step / np.maximum(length, 1e-300))[:, None]
         for _halving in range(8):
             trial = x[active] + step
             trial_residual = level[active] - np.asarray(f(trial), dtype=float)

@@ -124,3 +124,22 @@ def test_iris_versicolor_and_virginica_fit_with_a_finite_C():
     result = fit(*_iris_pair(1, 2), FitConfig(C=1.0))
     assert 0 < result.training_error < 0.1
 
+
+
+def test_the_soft_margin_kkt_scalings_stay_finite_where_their_product_overflows():
+    # E1 E2 / (E1 + E2) = 1 / (1/E1 + 1/E2) and E1 / (E1 + E2) = 1 / (1 + E2/E1) (divide
+    # numerator and denominator by E1 E2, resp. E1).  At E1 = E2 = 1e160 the product
+    # overflows, the ratios are 5e159 and 1/2; elsewhere the plain formula, to the bit.
+    import warnings
+
+    from solver.qp.primal_qp import _combined_scalings
+    e1 = np.array([2.0, 1e-3, 1e160, 1e200, 3.0])
+    e2 = np.array([5.0, 7e4, 1e160, 1e120, 1e300])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        joint, share = _combined_scalings(e1, e2)
+    assert np.isfinite(joint).all() and np.isfinite(share).all()
+    np.testing.assert_array_equal(joint[:2], e1[:2] * e2[:2] / (e1[:2] + e2[:2]))
+    np.testing.assert_array_equal(share[:2], e1[:2] / (e1[:2] + e2[:2]))
+    np.testing.assert_allclose(joint[2:], 1 / (1 / e1[2:] + 1 / e2[2:]), rtol=1e-15)
+    np.testing.assert_allclose(share[2:], [0.5, 1.0, 3e-300], rtol=1e-15)

@@ -44,12 +44,18 @@ class DecisionModel:
         if self.feature_weights is not None:
             return kernel.features(scaled, self) @ self.feature_weights + self.b
         out = np.empty(len(scaled))
+        for part, block, K in self._kernel_blocks(scaled, kernel):
+            out[part] = K @ self.coefficients + self.b
+        return out
+
+    def _kernel_blocks(self, scaled, kernel):
+        """(rows, their points, their kernel block against the support vectors), a block
+        of at most _BLOCK_ENTRIES values at a time."""
         rows = _rows_per_block(self.support_vectors)
         for start in range(0, len(scaled), rows):
             block = scaled[start:start + rows]
-            K = kernel.gram(block, self.support_vectors, self)
-            out[start:start + rows] = K @ self.coefficients + self.b
-        return out
+            yield slice(start, start + rows), block, kernel.gram(block, self.support_vectors,
+                                                                 self)
 
     @property
     def has_gradient(self) -> bool:
@@ -67,15 +73,11 @@ class DecisionModel:
             raise ValueError(f"no exact gradient for the {self.kernel} kernel")
         P = np.atleast_2d(np.asarray(points, dtype=float))
         scaled = scaling.apply(P, self.shift, self.scale)
-        kernel = kernels.get(self.kernel)
         weighted = self.coefficients[:, None] * self.support_vectors
         out = np.empty((len(scaled), scaled.shape[1]))
-        rows = _rows_per_block(self.support_vectors)
-        for start in range(0, len(scaled), rows):
-            block = scaled[start:start + rows]
-            K = kernel.gram(block, self.support_vectors, self)
-            out[start:start + rows] = -2.0 * self.gamma * (
-                block * (K @ self.coefficients)[:, None] - K @ weighted)
+        for part, block, K in self._kernel_blocks(scaled, kernels.get(self.kernel)):
+            out[part] = -2.0 * self.gamma * (block * (K @ self.coefficients)[:, None]
+                                             - K @ weighted)
         return out / self.scale
 
     def to_dict(self) -> dict:

@@ -263,8 +263,7 @@ def fit_geometry(result, rect, grid_values=None, project: bool = True,
             lines = {level: projected_polylines(result.decision_function, found, level, rect,
                                                 grad=_gradient_of(result))
                      for level, found in lines.items()}
-    points, starts, ends = slack_of(result, rect) if slack else (
-        np.zeros(0, dtype=int), np.zeros((0, 2)), np.zeros((0, 2)))
+    points, starts, ends = slack_of(result, rect) if slack else _no_slack()
     return FitGeometry(boundary=lines[0.0], band_positive=lines[1.0], band_negative=lines[-1.0],
                        slack_points=points, slack_from=starts, slack_to=ends,
                        weight=weight_arrow(result))
@@ -277,7 +276,7 @@ def slack_of(result, rect):
     the fit has no gradient of its own); points whose edge is not reached are left out.
     None at all when w = 0 (to rounding): there is no margin for slack to reach."""
     if result.w is not None and result.w_is_zero:
-        return np.zeros(0, dtype=int), np.zeros((0, 2)), np.zeros((0, 2))
+        return _no_slack()
     with_slack = np.flatnonzero(result.slack > 1e-9)
     X, y = result.X[with_slack], result.y[with_slack]
     if result.w is not None:
@@ -289,9 +288,13 @@ def slack_of(result, rect):
     return with_slack[reached], X[reached], targets[reached]
 
 
+def _no_slack():
+    return np.zeros(0, dtype=int), np.zeros((0, 2)), np.zeros((0, 2))
+
+
 def _gradient_of(result):
     """The fit's own grad f where it has one (Gaussian kernel fits), else None."""
-    return result.decision_gradient if getattr(result, "has_gradient", False) else None
+    return result.decision_gradient if result.has_gradient else None
 
 
 def lattice_values(f, rect, size: int = KERNEL_GRID):

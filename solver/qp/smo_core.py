@@ -272,15 +272,12 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
             lo_i, hi_i = window(X, i, reach)
             first, last = _bisect(act, m, lo_i), _bisect(act, m, hi_i)
         best, j = 0.0, -1
-        if not reach < np.inf:
-            pass                               # every point within reach
-        elif lo_i <= lowest < hi_i:            # beyond reach k_it = 0: one curvature
-            best, j = best_beyond(F, act, m, first, last, low, f_up, max(k_ii + 1.0, TAU),
-                                  bottom)
-        elif f_up - f_low > 0.0:
-            # beyond reach k_it = 0: the curvature is k_ii + 1 for all, and the best
-            # there is the smallest F over low
-            best, j = (f_up - f_low) ** 2 / max(k_ii + 1.0, TAU), lowest
+        if reach < np.inf:             # beyond reach k_it = 0: one curvature, k_ii + 1
+            if lo_i <= lowest < hi_i:
+                best, j = best_beyond(F, act, m, first, last, low, f_up,
+                                      max(k_ii + 1.0, TAU), bottom)
+            elif f_up - f_low > 0.0:   # the smallest F over low lies beyond: the best there
+                best, j = (f_up - f_low) ** 2 / max(k_ii + 1.0, TAU), lowest
         best, j = _best_pair(F, act, first, last, low, f_up, row_i, k_ii, best, j)
         if j < 0:
             break

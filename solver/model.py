@@ -14,13 +14,13 @@ import numpy as np
 
 from solver import kernels, scaling
 
-_BLOCK_ENTRIES = 1 << 21   # kernel values per block when evaluating an RBF expansion (16 MB):
+BLOCK_ENTRIES = 1 << 21   # kernel values per block when evaluating an RBF expansion (16 MB):
                            # the window's 120 x 120 lattice on 3,453 support vectors in one
                            # 400 MB block took 0.34 s, in blocks of this size 0.085 s
 
 
 def _rows_per_block(support_vectors) -> int:
-    return max(1, _BLOCK_ENTRIES // max(1, len(support_vectors)))
+    return max(1, BLOCK_ENTRIES // max(1, len(support_vectors)))
 
 
 @dataclass(frozen=True)
@@ -50,7 +50,7 @@ class DecisionModel:
 
     def _kernel_blocks(self, scaled, kernel):
         """(rows, their points, their kernel block against the support vectors), a block
-        of at most _BLOCK_ENTRIES values at a time."""
+        of at most BLOCK_ENTRIES values at a time."""
         rows = _rows_per_block(self.support_vectors)
         for start in range(0, len(scaled), rows):
             block = scaled[start:start + rows]

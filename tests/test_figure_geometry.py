@@ -210,4 +210,61 @@ def test_points_that_no_halving_moves_are_not_tried_again():
         grad=lambda p: np.c_[-2.0 * np.asarray(p)[:, 0], np.zeros(len(p))])
     assert not converged.any()
     np.testing.assert_array_equal(moved, start)
-    assert len(calls) == 1 + 8              # the first f, then one round of halvings
+    # the first f, the full step, then its seven halvings in one evaluation
+    assert calls == [3, 3, 7 * 3]
+
+
+def _newton_halving_one_at_a_time(f, grad, points, level, max_step, tolerance=1e-9,
+                                  iterations=40):
+    """newton_to_level as first written: each halving its own evaluation of f."""
+    x = np.array(points, dtype=float)
+    level = np.asarray(level, dtype=float).copy()
+    residual = level - f(x)
+    stuck = np.zeros(len(x), dtype=bool)
+    for _ in range(iterations):
+        active = np.flatnonzero((np.abs(residual) > tolerance) & ~stuck)
+        if not len(active):
+            break
+        g = grad(x[active])
+        step = (residual[active] / np.maximum(np.einsum("ij,ij->i", g, g), 1e-300))[:, None] * g
+        length = np.linalg.norm(step, axis=1)
+        step *= np.minimum(1.0, max_step / np.maximum(length, 1e-300))[:, None]
+        for _halving in range(8):
+            trial = x[active] + step
+            trial_residual = level[active] - f(trial)
+            better = np.abs(trial_residual) < np.abs(residual[active])
+            x[active[better]] = trial[better]
+            residual[active[better]] = trial_residual[better]
+            if better.all():
+                break
+            active, step = active[~better], 0.5 * step[~better]
+        else:
+            stuck[active] = True
+    return x, np.abs(residual) <= tolerance
+
+
+def test_halvings_in_one_evaluation_move_every_point_as_one_at_a_time():
+    # a narrow Gaussian fit: many slack points need shorter steps, some never arrive
+    rng = np.random.default_rng(6)
+    X = rng.normal(size=(400, 2))
+    y = np.where(X[:, 0] + 0.9 * rng.normal(size=400) > 0, 1, -1)
+    result = fit(X, y, FitConfig(kernel="rbf", gamma=30.0, C=1.0))
+    slack = np.flatnonzero(result.slack > 1e-9)
+    rect = geometry.padded_bounds(X)
+    reach = 0.25 * max(rect[1] - rect[0], rect[3] - rect[2])
+    calls = []
+
+    def f(points):
+        calls.append(len(points))
+        return result.decision_function(points)
+
+    moved, converged = geometry.newton_to_level(f, X[slack], y[slack], np.ones(2), reach,
+                                                grad=result.decision_gradient)
+    expected, reached = _newton_halving_one_at_a_time(
+        result.decision_function, result.decision_gradient, X[slack], y[slack], reach)
+    assert (~reached).sum() > 10 and any(count % 7 == 0 and count < len(slack)
+                                         for count in calls[1:])
+    # the same steps; f itself may round differently in a batch of another size
+    # (BLAS blocking, about 1e-16), so equal to far below the Newton tolerance
+    np.testing.assert_allclose(moved, expected, rtol=0, atol=1e-12)
+    np.testing.assert_array_equal(converged, reached)

@@ -60,6 +60,43 @@ def test_the_slider_shows_a_tick_at_every_breakpoint(window, qtbot):
     assert set(window.controls.slider.ticks) == {C_to_slider(C) for C in path.breakpoints}
 
 
+def _tick_columns(slider):
+    """Columns of the slider's bottom rows that the ticks change (painted with, then
+    without them)."""
+    ticks = slider.ticks
+    ticked = slider.grab().toImage()
+    slider.set_ticks(())
+    plain = slider.grab().toImage()
+    slider.set_ticks(ticks)
+    return {x for x in range(plain.width())
+            for row in range(plain.height() - 4, plain.height())
+            if ticked.pixel(x, row) != plain.pixel(x, row)}
+
+
+def _where_ticks_go(slider):
+    from PySide6.QtWidgets import QStyle, QStyleOptionSlider
+    option = QStyleOptionSlider()
+    slider.initStyleOption(option)
+    style = slider.style()
+    groove = style.subControlRect(QStyle.CC_Slider, option, QStyle.SC_SliderGroove, slider)
+    handle = style.subControlRect(QStyle.CC_Slider, option, QStyle.SC_SliderHandle, slider)
+    span, left = groove.width() - handle.width(), groove.x() + handle.width() / 2
+    return {left + QStyle.sliderPositionFromValue(slider.minimum(), slider.maximum(), t, span)
+            for t in slider.ticks}
+
+
+def test_the_ticks_are_painted_where_their_values_sit_also_after_a_resize(window, qtbot):
+    load_points(window, qtbot, gauge_points(overlap=True))
+    _path_ready(window, qtbot)
+    slider = window.controls.slider
+    for width in (slider.width(), slider.width() // 2):
+        slider.resize(width, slider.height())
+        painted, expected = _tick_columns(slider), _where_ticks_go(slider)
+        assert len(expected) > 3
+        assert all(any(abs(x - column) <= 1 for column in painted) for x in expected)
+        assert all(any(abs(x - column) <= 1 for x in expected) for column in painted)
+
+
 def test_path_view_lists_nearby_events_and_a_click_sets_c_just_past_one(window, qtbot):
     load_points(window, qtbot, gauge_points(overlap=True))
     _path_ready(window, qtbot)

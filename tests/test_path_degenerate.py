@@ -160,3 +160,21 @@ def test_c_outside_the_computed_range_is_refused_with_a_message():
         path.evaluate(20.0)
     with pytest.raises(InputError, match="must run upwards"):
         compute_path(X, y, FitConfig(), c_from=10.0, c_to=1.0)
+
+
+def test_events_near_are_the_nearest_in_log_c_as_sorting_them_all_would_give():
+    # the definition written out: every event's |log(C_e / C)|, the count smallest
+    # (first of equals first), listed in ascending C
+    import math
+    X, y = _grid_readings()
+    path = compute_path(X, y, FitConfig())
+    events = path.events
+    assert len(events) > 20
+    Cs = [event.C for event in events]
+    probes = Cs[:3] + Cs[-3:] + [math.sqrt(a * b) for a, b in zip(Cs, Cs[1:])][::3] \
+        + [path.c_from, path.c_to]
+    for C in probes:
+        for count in (0, 1, 5, 12, len(events) + 3):
+            distance = [abs(math.log(event.C / C)) for event in events]
+            nearest = sorted(range(len(events)), key=distance.__getitem__)[:count]
+            assert path.events_near(C, count) == [events[i] for i in sorted(nearest)], (C, count)

@@ -15,6 +15,7 @@ from app.canvas import geometry
 from app.document.class_words import caption
 from app.canvas.scale_note import ScaleNote
 from app.canvas.palette import class_colour, class_symbol, palette
+from solver.field import ExpansionField
 
 KERNEL_GRID = geometry.KERNEL_GRID   # contour and shading lattice for kernel fits
 LINEAR_GRID = 64    # linear f is a plane: a coarse shading grid is exact enough
@@ -52,6 +53,8 @@ class SceneItems:
         self.plot = plot
         self.result = None
         self.shade = pg.ImageItem(lut=_shade_lookup(), levels=(-SHADE_LIMIT, SHADE_LIMIT))
+        # a kernel fit's f on the lattice, reusing the columns successive fits share
+        self.field = ExpansionField()
         self.shade.setZValue(-20)
         plot.addItem(self.shade, ignoreBounds=True)
 
@@ -225,7 +228,8 @@ class SceneItems:
     def _draw_field(self, result, rect):
         x0, x1, y0, y1 = rect
         size = LINEAR_GRID if result.w is not None else KERNEL_GRID
-        xs, ys, values = geometry.lattice_values(result.decision_function, rect, size)
+        xs, ys, values = geometry.lattice_values(
+            lambda points: self.field.values(result.model, points), rect, size)
         # ImageItem reads image[x, y]; each texel covers one lattice cell
         self.shade.setImage(values.T, autoLevels=False, levels=(-SHADE_LIMIT, SHADE_LIMIT))
         dx, dy = (x1 - x0) / (size - 1), (y1 - y0) / (size - 1)

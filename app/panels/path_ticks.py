@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from PySide6.QtCore import QPointF
+from PySide6.QtCore import QLineF
 from PySide6.QtGui import QPainter, QPalette, QPen
 from PySide6.QtWidgets import QSlider, QStyle, QStyleOptionSlider
 
@@ -13,6 +13,7 @@ class TickedSlider(QSlider):
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
         self._ticks: tuple[int, ...] = ()
+        self._lines: tuple = (None, [])    # (geometry they were placed for, QLineF list)
 
     @property
     def ticks(self) -> tuple[int, ...]:
@@ -36,11 +37,17 @@ class TickedSlider(QSlider):
         handle = style.subControlRect(QStyle.CC_Slider, option, QStyle.SC_SliderHandle, self)
         span = groove.width() - handle.width()
         left = groove.x() + handle.width() / 2
+        bottom = self.height() - 1
+        # placed once per geometry: a path has hundreds of ticks, and the slider repaints
+        # on every step of C (one drawLines instead of a Python loop of drawLine)
+        placed = (self._ticks, span, left, bottom, self.minimum(), self.maximum())
+        if self._lines[0] != placed:
+            lines = [QLineF(x, bottom - 3, x, bottom)
+                     for x in (left + QStyle.sliderPositionFromValue(
+                         self.minimum(), self.maximum(), position, span)
+                         for position in self._ticks)]
+            self._lines = (placed, lines)
         painter = QPainter(self)
         painter.setPen(QPen(self.palette().color(QPalette.WindowText), 1))
-        bottom = self.height() - 1
-        for position in self._ticks:
-            x = left + QStyle.sliderPositionFromValue(self.minimum(), self.maximum(),
-                                                      position, span)
-            painter.drawLine(QPointF(x, bottom - 3), QPointF(x, bottom))
+        painter.drawLines(self._lines[1])
         painter.end()

@@ -152,10 +152,18 @@ class CPath:
 
     def events_near(self, C: float, count: int = 5) -> list:
         """The ``count`` events nearest to C in log C."""
-        if not self.events:
+        if not self.events or count <= 0:
             return []
-        distance = [abs(math.log(event.C / C)) for event in self.events]
-        order = sorted(range(len(self.events)), key=distance.__getitem__)[:count]
+        # events ascend in C, so the nearest lie within ``count`` places of C on either
+        # side: a search and a handful of logarithms instead of thousands (the window
+        # asks for them on every step of the C slider)
+        at = bisect.bisect_left(self.events, C, key=lambda event: event.C)
+        low = max(0, at - count)
+        while low > 0 and self.events[low - 1].C == self.events[low].C:
+            low -= 1          # of events at one C, the first come first (as in one sort)
+        near = range(low, min(len(self.events), at + count))
+        distance = {i: abs(math.log(self.events[i].C / C)) for i in near}
+        order = sorted(near, key=distance.__getitem__)[:count]
         return [self.events[i] for i in sorted(order)]
 
     def _check_c(self, C) -> float:

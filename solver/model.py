@@ -69,16 +69,23 @@ class DecisionModel:
         grad_s f = -2 gamma sum_j c_j k_j (s - s_j) = -2 gamma (s (Kc) - K (c s_j)), one
         kernel block for both components (central differences take four), and
         grad_x f = grad_s f / scale."""
+        return self.value_and_gradient(points)[1]
+
+    def value_and_gradient(self, points) -> tuple[np.ndarray, np.ndarray]:
+        """(f(x), grad f(x)) for each row of ``points``, Gaussian (RBF) fits: one kernel
+        block for both, since K c is part of the gradient (f = K c + b)."""
         if not self.has_gradient:
             raise ValueError(f"no exact gradient for the {self.kernel} kernel")
         P = np.atleast_2d(np.asarray(points, dtype=float))
         scaled = scaling.apply(P, self.shift, self.scale)
         weighted = self.coefficients[:, None] * self.support_vectors
+        values = np.empty(len(scaled))
         out = np.empty((len(scaled), scaled.shape[1]))
         for part, block, K in self._kernel_blocks(scaled, kernels.get(self.kernel)):
-            out[part] = -2.0 * self.gamma * (block * (K @ self.coefficients)[:, None]
-                                             - K @ weighted)
-        return out / self.scale
+            Kc = K @ self.coefficients
+            values[part] = Kc + self.b
+            out[part] = -2.0 * self.gamma * (block * Kc[:, None] - K @ weighted)
+        return values, out / self.scale
 
     def to_dict(self) -> dict:
         """The decision function as experiment files store it (results.model)."""

@@ -215,6 +215,10 @@ class FitResult:
         """grad f evaluated anywhere (original units); Gaussian kernel fits only."""
         return self.model.gradient(points)
 
+    def decision_value_and_gradient(self, points) -> tuple[np.ndarray, np.ndarray]:
+        """(f, grad f) anywhere from one kernel block; Gaussian kernel fits only."""
+        return self.model.value_and_gradient(points)
+
     def predict(self, points) -> np.ndarray:
         """Sign of f: +1 or -1 (0 maps to +1)."""
         return np.where(self.decision_function(points) >= 0, 1, -1)

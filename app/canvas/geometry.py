@@ -93,7 +93,7 @@ def gradient(f, points, steps) -> np.ndarray:
 
 
 def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iterations=40,
-                    grad=None):
+                    grad=None, both=None):
     """Move each point onto {f = level} by Newton steps along the gradient.
 
     x <- x + (level - f(x)) g / |g|^2, g = grad f(x): the Newton step for
@@ -103,13 +103,22 @@ def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iteration
     with converged = |f - level| <= tolerance.  ``grad``: the fit's own gradient
     (``FitResult.decision_gradient``), else central differences with ``steps``
     (four evaluations of f a point where the fit's takes about one: n = 5,000,
-    gamma 50, the slack segments of 2,252 points took 8.9 s so).
+    gamma 50, the slack segments of 2,252 points took 8.9 s so).  ``both``: f and
+    its gradient from one evaluation (``FitResult.decision_value_and_gradient``):
+    a full step's trial then brings the gradient for the next step along.
     """
     x = np.array(points, dtype=float).reshape(-1, 2)
     level = np.broadcast_to(np.asarray(level, dtype=float), (len(x),)).copy()
     if not len(x):
         return x, np.zeros(0, dtype=bool)
-    residual = level - np.asarray(f(x), dtype=float)
+    G = np.zeros_like(x)                    # grad f at x, where ``known``
+    known = np.zeros(len(x), dtype=bool)
+    if both is not None:
+        values, G[:] = both(x)
+        known[:] = True
+    else:
+        values = f(x)
+    residual = level - np.asarray(values, dtype=float)
     # a point no halving brings closer stays where it is, and so would its next step:
     # it is left out of later iterations (n = 5,000, gamma 50: 668 of 2,252 slack
     # points, whose 40 iterations of 8 halvings were most of the work)
@@ -118,17 +127,29 @@ def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iteration
         active = np.flatnonzero((np.abs(residual) > tolerance) & ~stuck)
         if not len(active):
             break
-        g = gradient(f, x[active], steps) if grad is None else grad(x[active])
+        need = active[~known[active]]
+        if len(need):
+            G[need] = (grad(x[need]) if grad is not None else both(x[need])[1]
+                       if both is not None else gradient(f, x[need], steps))
+        g = G[active]
         norm2 = np.maximum(np.einsum("ij,ij->i", g, g), 1e-300)
         step = (residual[active] / norm2)[:, None] * g
         length = np.linalg.norm(step, axis=1)
         with np.errstate(over="ignore"):      # a huge max_step over a tiny step: factor 1
             step *= np.minimum(1.0, max_step / np.maximum(length, 1e-300))[:, None]
         trial = x[active] + step
-        trial_residual = level[active] - np.asarray(f(trial), dtype=float)
+        if both is not None:
+            values, trial_gradient = both(trial)
+        else:
+            values, trial_gradient = f(trial), None
+        trial_residual = level[active] - np.asarray(values, dtype=float)
         better = np.abs(trial_residual) < np.abs(residual[active])
         x[active[better]] = trial[better]
         residual[active[better]] = trial_residual[better]
+        known[active] = False
+        if trial_gradient is not None:
+            G[active[better]] = trial_gradient[better]
+            known[active[better]] = True
         if not better.all():
             active, step = active[~better], step[~better]
             stuck[active[~_halved(f, x, level, residual, active, step)]] = True
@@ -136,38 +157,52 @@ def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iteration
 
 
 HALVINGS = 7    # shorter steps tried after a full Newton step that brings f no closer
+BATCH = 512     # trial points up to which the remaining halvings share one evaluation
 
 
 def _halved(f, x, level, residual, active, step) -> np.ndarray:
     """Move each of ``active`` by the longest of step/2, step/4, ... (HALVINGS of them)
     that brings f closer to its level, as halving one at a time would (the factors are
-    powers of two, exact); all of them in one evaluation of f, where one at a time took
-    an evaluation each for the few points that need them.  True where one did."""
-    factors = 0.5 ** np.arange(1, HALVINGS + 1)
-    trials = x[active][None, :, :] + factors[:, None, None] * step[None, :, :]
-    values = np.asarray(f(trials.reshape(-1, 2)), dtype=float).reshape(HALVINGS, len(active))
-    errors = np.abs(level[active][None, :] - values)
-    better = errors < np.abs(residual[active])[None, :]
-    moved = better.any(axis=0)
-    first = better.argmax(axis=0)[moved]
-    chosen = active[moved]
-    x[chosen] = trials[first, np.flatnonzero(moved)]
-    residual[chosen] = level[chosen] - values[first, np.flatnonzero(moved)]
+    powers of two, exact).  The remaining halvings of a few points go in one evaluation
+    of f (one at a time, a handful of points cost a call each: n = 1,000, a C step's
+    slack segments made 39 calls, now 26); many points halve one at a time, since most
+    stop at the first (n = 5,000, gamma 50: seven at once for all took 0.58 s of the
+    window's 1.1 s).  True where a halving moved the point."""
+    moved = np.zeros(len(active), dtype=bool)
+    waiting = np.arange(len(active))
+    for k in range(1, HALVINGS + 1):
+        factors = 0.5 ** np.arange(k, HALVINGS + 1)
+        if len(waiting) * len(factors) > BATCH:
+            factors = factors[:1]
+        points = active[waiting]
+        trials = x[points][None, :, :] + factors[:, None, None] * step[waiting][None, :, :]
+        values = np.asarray(f(trials.reshape(-1, 2)), dtype=float).reshape(len(factors),
+                                                                          len(points))
+        better = np.abs(level[points][None, :] - values) < np.abs(residual[points])[None, :]
+        found = better.any(axis=0)
+        first = better.argmax(axis=0)[found]
+        chosen = points[found]
+        x[chosen] = trials[first, np.flatnonzero(found)]
+        residual[chosen] = level[chosen] - values[first, np.flatnonzero(found)]
+        moved[waiting[found]] = True
+        waiting = waiting[~found]
+        if len(factors) > 1 or not len(waiting):
+            break
     return moved
 
 
-def slack_targets(f, X, y, rect, tolerance=1e-9, grad=None):
+def slack_targets(f, X, y, rect, tolerance=1e-9, grad=None, both=None):
     """Kernel fits: where each point meets its own class's margin edge f = y_i.
 
-    Newton steps along the gradient of f from the point (newton_to_level: ``grad``,
-    else finite differences with steps relative to each axis of ``rect``).  Returns
+    Newton steps along the gradient of f from the point (newton_to_level: ``grad`` or
+    ``both``, else finite differences with steps relative to each axis of ``rect``).  Returns
     (targets, converged); a point whose edge cannot be reached has
     converged False and is not drawn.
     """
     x0, x1, y0, y1 = rect
     reach = 0.25 * max(abs(x1 - x0), abs(y1 - y0))
     return newton_to_level(f, X, np.asarray(y, dtype=float), axis_steps(rect), reach,
-                           tolerance=tolerance, grad=grad)
+                           tolerance=tolerance, grad=grad, both=both)
 
 
 def level_polylines(values, xs, ys, level: float) -> list[np.ndarray]:
@@ -184,7 +219,7 @@ def level_polylines(values, xs, ys, level: float) -> list[np.ndarray]:
 
 
 def projected_polylines(f, lines, level: float, rect, tolerance=1e-9,
-                        grad=None) -> list[np.ndarray]:
+                        grad=None, both=None) -> list[np.ndarray]:
     """``lines`` with every vertex moved onto {f = level} by Newton steps.
 
     The grid's linear interpolation leaves vertices a little off the level
@@ -195,7 +230,7 @@ def projected_polylines(f, lines, level: float, rect, tolerance=1e-9,
     counts = [len(line) for line in lines]
     moved, converged = newton_to_level(f, np.concatenate(lines), level, axis_steps(rect),
                                        0.05 * max(rect[1] - rect[0], rect[3] - rect[2]),
-                                       tolerance=tolerance, grad=grad)
+                                       tolerance=tolerance, grad=grad, both=both)
     out = []
     for chunk, ok in zip(np.split(moved, np.cumsum(counts)[:-1]),
                          np.split(converged, np.cumsum(counts)[:-1])):
@@ -279,7 +314,7 @@ def fit_geometry(result, rect, grid_values=None, project: bool = True,
         lines = {level: level_polylines(values, xs, ys, level) for level in (0.0, 1.0, -1.0)}
         if project:
             lines = {level: projected_polylines(result.decision_function, found, level, rect,
-                                                grad=_gradient_of(result))
+                                                both=_value_and_gradient_of(result))
                      for level, found in lines.items()}
     points, starts, ends = slack_of(result, rect) if slack else _no_slack()
     return FitGeometry(boundary=lines[0.0], band_positive=lines[1.0], band_negative=lines[-1.0],
@@ -302,7 +337,7 @@ def slack_of(result, rect):
         reached = np.ones(len(X), dtype=bool)
     else:
         targets, reached = slack_targets(result.decision_function, X, y, rect,
-                                         grad=_gradient_of(result))
+                                         both=_value_and_gradient_of(result))
     return with_slack[reached], X[reached], targets[reached]
 
 
@@ -310,9 +345,9 @@ def _no_slack():
     return np.zeros(0, dtype=int), np.zeros((0, 2)), np.zeros((0, 2))
 
 
-def _gradient_of(result):
-    """The fit's own grad f where it has one (Gaussian kernel fits), else None."""
-    return result.decision_gradient if result.has_gradient else None
+def _value_and_gradient_of(result):
+    """The fit's own (f, grad f) where it has a gradient (Gaussian kernel fits), else None."""
+    return result.decision_value_and_gradient if result.has_gradient else None
 
 
 def lattice_values(f, rect, size: int = KERNEL_GRID):

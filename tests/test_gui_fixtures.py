@@ -37,6 +37,7 @@ def window(qtbot, temporary_settings):
     yield win
     win.recovery.timer.stop()
     win.evidence_actions.evidence.shutdown()     # an influence ranking still under way
+    win.canvas.scene_items.shutdown()            # slack segments still being made
     win.document.shutdown()
 
 

@@ -122,7 +122,7 @@ class Canvas(pg.PlotWidget):
             axis.setTextPen(pg.mkPen(palette()["axis"]))
         view.setAspectLocked(True)
         view.disableAutoRange()
-        self.scene_items = SceneItems(self.plot)
+        self.scene_items = SceneItems(self.plot, background=True)
         for item in self.scene_items.marker_items():
             item.sigClicked.connect(self._marker_clicked)
         self._stale = QLabel(self)

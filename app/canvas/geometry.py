@@ -93,7 +93,7 @@ def gradient(f, points, steps) -> np.ndarray:
 
 
 def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iterations=40,
-                    grad=None, both=None):
+                    grad=None, both=None, stop=None):
     """Move each point onto {f = level} by Newton steps along the gradient.
 
     x <- x + (level - f(x)) g / |g|^2, g = grad f(x): the Newton step for
@@ -105,7 +105,8 @@ def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iteration
     (four evaluations of f a point where the fit's takes about one: n = 5,000,
     gamma 50, the slack segments of 2,252 points took 8.9 s so).  ``both``: f and
     its gradient from one evaluation (``FitResult.decision_value_and_gradient``):
-    a full step's trial then brings the gradient for the next step along.
+    a full step's trial then brings the gradient for the next step along.  ``stop()``
+    True ends the steps early (the caller no longer wants them).
     """
     x = np.array(points, dtype=float).reshape(-1, 2)
     level = np.broadcast_to(np.asarray(level, dtype=float), (len(x),)).copy()
@@ -125,7 +126,7 @@ def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iteration
     stuck = np.zeros(len(x), dtype=bool)
     for _ in range(iterations):
         active = np.flatnonzero((np.abs(residual) > tolerance) & ~stuck)
-        if not len(active):
+        if not len(active) or (stop is not None and stop()):
             break
         need = active[~known[active]]
         if len(need):
@@ -191,7 +192,7 @@ def _halved(f, x, level, residual, active, step) -> np.ndarray:
     return moved
 
 
-def slack_targets(f, X, y, rect, tolerance=1e-9, grad=None, both=None):
+def slack_targets(f, X, y, rect, tolerance=1e-9, grad=None, both=None, stop=None):
     """Kernel fits: where each point meets its own class's margin edge f = y_i.
 
     Newton steps along the gradient of f from the point (newton_to_level: ``grad`` or
@@ -202,7 +203,7 @@ def slack_targets(f, X, y, rect, tolerance=1e-9, grad=None, both=None):
     x0, x1, y0, y1 = rect
     reach = 0.25 * max(abs(x1 - x0), abs(y1 - y0))
     return newton_to_level(f, X, np.asarray(y, dtype=float), axis_steps(rect), reach,
-                           tolerance=tolerance, grad=grad, both=both)
+                           tolerance=tolerance, grad=grad, both=both, stop=stop)
 
 
 def level_polylines(values, xs, ys, level: float) -> list[np.ndarray]:
@@ -322,12 +323,22 @@ def fit_geometry(result, rect, grid_values=None, project: bool = True,
                        weight=weight_arrow(result))
 
 
-def slack_of(result, rect):
+def slack_work(result) -> int:
+    """Kernel values one evaluation of f at every point with slack takes (points with
+    slack x support vectors; 0 for linear fits, whose segments need no f): the slack
+    segments' Newton steps take a few dozen such evaluations."""
+    if result.w is not None:
+        return 0
+    return int(np.count_nonzero(result.slack > 1e-9)) * max(1, len(result.support))
+
+
+def slack_of(result, rect, stop=None):
     """(indices, from, to): the slack segments of ``result``, each point with slack to
     where it meets its own margin edge (linear fits: along w; kernel fits: Newton
     steps, ``slack_targets``, finite differences relative to ``rect``'s axes where
     the fit has no gradient of its own); points whose edge is not reached are left out.
-    None at all when w = 0 (to rounding): there is no margin for slack to reach."""
+    None at all when w = 0 (to rounding): there is no margin for slack to reach.
+    ``stop()`` True: the Newton steps end early, and the segments are incomplete."""
     if result.w is not None and result.w_is_zero:
         return _no_slack()
     with_slack = np.flatnonzero(result.slack > 1e-9)
@@ -337,7 +348,7 @@ def slack_of(result, rect):
         reached = np.ones(len(X), dtype=bool)
     else:
         targets, reached = slack_targets(result.decision_function, X, y, rect,
-                                         both=_value_and_gradient_of(result))
+                                         both=_value_and_gradient_of(result), stop=stop)
     return with_slack[reached], X[reached], targets[reached]
 
 

@@ -15,7 +15,12 @@ from app.canvas import geometry
 from app.document.class_words import caption
 from app.canvas.scale_note import ScaleNote
 from app.canvas.palette import class_colour, class_symbol, palette
+from app.document.background import LatestTask
 from solver.field import ExpansionField
+
+SLACK_INLINE = 2_000_000   # kernel values an evaluation of f at the slack points, up to
+                           # which their segments are made on the window's thread (n = 1,000,
+                           # every point with slack: 1e6, about 55 ms in all)
 
 KERNEL_GRID = geometry.KERNEL_GRID   # contour and shading lattice for kernel fits
 LINEAR_GRID = 64    # linear f is a plane: a coarse shading grid is exact enough
@@ -48,13 +53,16 @@ def _show_lines(item, lines):
 class SceneItems:
     """Every item of one plot: shading, boundary, band, w, slack, points, rings."""
 
-    def __init__(self, plot: pg.PlotItem, legend: bool = True):
+    def __init__(self, plot: pg.PlotItem, legend: bool = True, background: bool = False):
         colours = palette()
         self.plot = plot
         self.result = None
         self.shade = pg.ImageItem(lut=_shade_lookup(), levels=(-SHADE_LIMIT, SHADE_LIMIT))
         # a kernel fit's f on the lattice, reusing the columns successive fits share
         self.field = ExpansionField()
+        # ``background``: slack segments too slow for the window's thread are made off it
+        # (a figure rendered to a file draws them all at once)
+        self.slack_task = LatestTask() if background else None
         self.shade.setZValue(-20)
         plot.addItem(self.shade, ignoreBounds=True)
 
@@ -147,6 +155,8 @@ class SceneItems:
     def set_result(self, result, X: np.ndarray, y: np.ndarray, rect):
         """Draw ``result`` over ``rect``; per-point items only while they match X."""
         self.result = result
+        if self.slack_task is not None:
+            self.slack_task.cancel()          # segments of an earlier fit are not wanted
         if result is None:
             for item in (self.boundary, self.band, self.weight, self.slack):
                 item.setData([], [])
@@ -162,8 +172,7 @@ class SceneItems:
         if matches:
             support = result.X[result.support]
             self.rings.setData(x=support[:, 0], y=support[:, 1], data=result.support)
-            _, starts, ends = geometry.slack_of(result, rect)
-            self._draw_slack(starts, ends)
+            self._make_slack(result, rect)
         else:
             self.rings.setData([], [])
             self.slack.setData([], [])
@@ -240,6 +249,23 @@ class SceneItems:
                                       project=False, slack=False)
         _show_lines(self.boundary, shape.boundary)
         _show_lines(self.band, shape.band_positive + shape.band_negative)
+
+    def _make_slack(self, result, rect):
+        """The slack segments of ``result``: at once, or, past SLACK_INLINE kernel values
+        an evaluation, off the window's thread (n = 5,000, gamma 50, C 0.1: 4 s a step
+        of C), drawn when they arrive; until then none (an earlier fit's would mislead)."""
+        if self.slack_task is None or geometry.slack_work(result) <= SLACK_INLINE:
+            _, starts, ends = geometry.slack_of(result, rect)
+            self._draw_slack(starts, ends)
+            return
+        self.slack.setData([], [])
+        self.slack_task.start(lambda cancel: geometry.slack_of(result, rect, stop=cancel.is_set),
+                              lambda made: self._draw_slack(made[1], made[2]))
+
+    def shutdown(self):
+        """Stop making slack segments (the window closes)."""
+        if self.slack_task is not None:
+            self.slack_task.cancel()
 
     def _draw_slack(self, starts, ends):
         pairs = geometry.slack_segments(starts, ends)

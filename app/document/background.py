@@ -2,9 +2,10 @@
 
 from __future__ import annotations
 
+import atexit
 import threading
 
-from PySide6.QtCore import QThread, Signal
+from PySide6.QtCore import QObject, QThread, Signal, Slot
 
 
 class BackgroundTask(QThread):
@@ -33,3 +34,93 @@ class BackgroundTask(QThread):
 
     def cancel(self):
         self.cancel_event.set()
+
+
+# every LatestTask thread still running, held here so that none is destroyed mid-run
+# (a window closed while its thread works); waited for at exit
+_RUNNING: set = set()
+
+
+class LatestTask(QObject):
+    """Runs ``work(cancel)`` off the GUI thread where only the latest call matters.
+
+    Starting another cancels the one before (``cancel`` is a threading.Event its work
+    checks now and then) and drops its outcome; ``done(outcome)`` runs on the GUI
+    thread for the latest only.  For drawing that is too slow for the GUI thread.
+    """
+
+    _arrived = Signal(object)
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self._current = None
+        self._done = None
+
+    @property
+    def busy(self) -> bool:
+        return self._current is not None
+
+    def start(self, work, done) -> None:
+        self.cancel()
+        token = object()
+        task = BackgroundTask(lambda progress, cancel: (token, work(cancel)))
+        self._current, self._done = (token, task), done
+        task.succeeded.connect(self._on_succeeded)
+        task.failed.connect(self._on_failed)
+        task.finished.connect(self._on_finished)
+        _RUNNING.add(task)
+        task.start()
+
+    def cancel(self) -> None:
+        if self._current is not None:
+            self._current[1].cancel()
+        self._current = self._done = None
+
+    def wait(self, timeout_ms: int = 60000) -> bool:
+        """Block until the latest task's outcome has been delivered (tests)."""
+        return events_until(lambda: not self.busy, timeout_ms)
+
+    @Slot(object)
+    def _on_succeeded(self, outcome):
+        token, value = outcome
+        if self._current is not None and token is self._current[0]:
+            done = self._done
+            self._current = self._done = None
+            done(value)
+
+    @Slot(str)
+    def _on_failed(self, message):
+        # drawing only: a failure leaves that part of the picture out, as a stale one
+        # would be; the fit itself is shown by the views that do not need it
+        if self._current is not None and self.sender() is self._current[1]:
+            self._current = self._done = None
+
+    @Slot()
+    def _on_finished(self):
+        task = self.sender()
+        _RUNNING.discard(task)
+        if task is not None:
+            task.deleteLater()
+
+
+def events_until(done, timeout_ms: int) -> bool:
+    """Process events until ``done()`` or the time-out; done() at the end (tests, headless)."""
+    from PySide6.QtCore import QCoreApplication, QElapsedTimer
+    clock = QElapsedTimer()
+    clock.start()
+    while not done() and clock.elapsed() < timeout_ms:
+        QCoreApplication.processEvents()
+        QThread.msleep(1)
+    return done()
+
+
+def _wait_for_running_tasks():
+    for task in list(_RUNNING):
+        task.cancel()
+        try:
+            task.wait(10000)
+        except RuntimeError:       # the C++ object is already gone
+            pass
+
+
+atexit.register(_wait_for_running_tasks)

@@ -14,6 +14,7 @@ import weakref
 
 from PySide6.QtCore import QObject, QThread, Signal, Slot
 
+from app.document.background import events_until
 from solver import ConvergenceError, SlacklineError
 from solver import fit  # looked up at call time, so tests can replace it
 
@@ -148,13 +149,7 @@ class SolveController(QObject):
 
     def wait(self, timeout_ms: int) -> bool:
         """Process events until the latest request is answered (tests, headless)."""
-        from PySide6.QtCore import QCoreApplication, QElapsedTimer
-        clock = QElapsedTimer()
-        clock.start()
-        while self.busy and clock.elapsed() < timeout_ms:
-            QCoreApplication.processEvents()
-            QThread.msleep(1)
-        return not self.busy
+        return events_until(lambda: not self.busy, timeout_ms)
 
     def shutdown(self):
         if self._thread is not None and self._thread.isRunning():

@@ -237,6 +237,7 @@ class MainWindow(QMainWindow):
         self.recovery.timer.stop()
         self.recovery.discard()
         self.evidence_actions.evidence.shutdown()
+        self.canvas.scene_items.shutdown()
         self.document.shutdown()
         event.accept()
 

@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from solver import limits, scaling
+from solver import compiled_cache, limits, scaling
 from solver.config import FitConfig
 from solver.errors import ConvergenceError, InputError, SlacklineError
 from solver.model import DecisionModel
@@ -133,7 +133,8 @@ def _solve_dual(X, Xs, y, penalties, config, shift, scale, warm_start) -> _Solve
     guess, alpha_start = _warm_start_guess(warm_start, X, y, config, penalties)
     kernel = config.kernel_spec
     kernel_matrix = lambda A, B: kernel.gram(A, B, config)  # noqa: E731
-    compiled_gamma = config.gamma if kernel.compiled == "rbf" else None
+    compiled_gamma = (config.gamma if kernel.compiled == "rbf"
+                      and not compiled_cache.wait_would_be_long(len(y)) else None)
     sol = solve_dual(Xs, y, penalties, kernel_matrix, config.options, guess_margin=guess,
                      alpha_start=alpha_start, rbf_gamma=compiled_gamma)
     support = np.flatnonzero(sol.alpha > 0)

@@ -18,9 +18,11 @@ import time
 
 import numpy as np
 
+from solver import compiled_cache
 from solver.config import FitConfig
 from solver.fit import fit
-from solver.qp import pair_rows, smo
+from solver.kernels.rbf_core import UNDERFLOW, rbf_block
+from solver.qp import pair_rows, row_sums, smo
 
 # eight invented points: a ring of one class around a square of the other, which
 # no line separates, so the fit has free and bound support vectors alike
@@ -29,11 +31,34 @@ _CORE = [(0.4, 0.4), (-0.4, 0.4), (-0.4, -0.4), (0.4, -0.3)]
 _CONFIG = FitConfig(kernel="rbf", C=1.0, gamma=0.5)
 
 
-def prepare_kernel_solver() -> float:
-    """Fit the tiny RBF problem once; the seconds it took (compiling or loading included)."""
+def prepare_kernel_solver(background: bool = False) -> float:
+    """Fit the tiny RBF problem once; the seconds it took (compiling or loading included).
+
+    ``background``: other threads' small Gaussian fits meanwhile take the working-set
+    path (``compiled_cache.wait_would_be_long``), whose kernel rows and row sums are
+    built first, instead of waiting for the rest."""
+    started = time.perf_counter()
+    if not background:
+        return _compile_all(started)
+    compiled_cache.start_building()
+    try:
+        _compile_rows()
+        return _compile_all(started)
+    finally:
+        compiled_cache.end_building()
+
+
+def _compile_rows() -> None:
+    """The compiled parts the working-set path uses: kernel rows and row sums."""
+    X = np.array(_RING + _CORE, dtype=float)
+    rbf_block(X, X, _CONFIG.gamma, UNDERFLOW)
+    row_sums.add_rows(np.ones((2, len(X))), np.arange(2, dtype=np.intp), np.ones(2),
+                      np.zeros(len(X)))
+
+
+def _compile_all(started: float) -> float:
     X = np.array(_RING + _CORE, dtype=float)
     y = np.r_[np.ones(len(_RING), dtype=int), -np.ones(len(_CORE), dtype=int)]
-    started = time.perf_counter()
     fit(X, y, _CONFIG)
     # fits of many points run the pair steps on single rows (``qp/pair_rows.py``), which
     # numba compiles apart: once more on the same points, with such rows

@@ -18,6 +18,7 @@ thread to an object the window has already destroyed.
 
 from __future__ import annotations
 
+import functools
 import logging
 import threading
 
@@ -38,7 +39,8 @@ class SolverWarmUp(QObject):
 
     def __init__(self, parent=None, work=None):
         super().__init__(parent)
-        self._work = work or prepare_kernel_solver
+        # background: small Gaussian fits meanwhile take the working-set path
+        self._work = work or functools.partial(prepare_kernel_solver, background=True)
         self._thread: threading.Thread | None = None
         self._outcome = _Outcome()   # all the thread touches: no Qt object
         self._poll = QTimer(self, interval=POLL_MS)

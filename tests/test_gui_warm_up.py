@@ -60,6 +60,13 @@ def test_the_status_bar_says_plainly_that_the_kernel_solver_is_getting_ready(win
     message = window.statusBar().currentMessage()
     assert message == READY_MESSAGE
     assert "Gaussian (RBF)" in message and "jit" not in message.lower()
+    # at 1280 x 800 it ends before the status bar's own widgets begin (seen clipped)
+    from PySide6.QtWidgets import QSizeGrip, QWidget
+    bar = window.statusBar()
+    assert window.width() == 1280
+    first = min(w.x() for w in bar.findChildren(QWidget)
+                if w.isVisible() and not isinstance(w, QSizeGrip))
+    assert bar.fontMetrics().horizontalAdvance(message) + 12 <= first
     with qtbot.waitSignal(status.warm_up.finished, timeout=5000):
         work.release.set()
     qtbot.wait(5)

@@ -6,9 +6,12 @@ from __future__ import annotations
 from PySide6.QtCore import QTimer
 
 from app.document.warm_up import SolverWarmUp
+from solver.compiled_cache import GENERIC_LIMIT
 
-READY_MESSAGE = ("getting the Gaussian (RBF) solver ready: up to half a minute the first time "
-                 "Slackline runs on this computer")
+# short enough for the status bar at 1280 px beside the fit's own read-out; the 300
+# is compiled_cache.GENERIC_LIMIT, the fits that take the working-set path meanwhile
+READY_MESSAGE = (f"preparing the fast Gaussian (RBF) solver (first run only, up to 30 s); "
+                 f"fits of up to {GENERIC_LIMIT} points run meanwhile")
 SAY_AFTER_MS = 400        # a warm-up that is quicker than this (cached) goes unmentioned
 
 

@@ -48,6 +48,34 @@ class DecisionModel:
             out[part] = K @ self.coefficients + self.b
         return out
 
+    def grid_values(self, xs, ys) -> np.ndarray:
+        """f on the lattice xs x ys (original units), as values[iy, ix].
+
+        A Gaussian expansion in two features factors along the axes (z-scoring scales
+        each axis alone): exp(-gamma |s - s_j|^2) = exp(-gamma (u - u_j)^2) exp(-gamma
+        (v - v_j)^2), so the lattice is (E_v diag(c)) E_u' with one exponential per
+        lattice column or row and support vector, and one matrix product, where point by
+        point it takes one per lattice point and support vector (the window's 120 x 120
+        lattice on 700 support vectors: 20 ms -> about 1).  Other models: f point by point.
+        """
+        xs, ys = np.asarray(xs, dtype=float), np.asarray(ys, dtype=float)
+        if not self.has_gradient or self.support_vectors.shape[1] != 2:
+            gx, gy = np.meshgrid(xs, ys)
+            points = np.column_stack([gx.ravel(), gy.ravel()])
+            return self.decision_function(points).reshape(len(ys), len(xs))
+        u = (xs - self.shift[0]) / self.scale[0]
+        v = (ys - self.shift[1]) / self.scale[1]
+        S, c = self.support_vectors, self.coefficients
+        out = np.full((len(ys), len(xs)), float(self.b))
+        step = max(1, BLOCK_ENTRIES // max(1, len(xs) + len(ys)))
+        with np.errstate(over="ignore", under="ignore"):   # a far lattice: its k is 0
+            for start in range(0, len(S), step):
+                part = slice(start, start + step)
+                along_u = np.exp(-self.gamma * (u[:, None] - S[None, part, 0]) ** 2)
+                along_v = np.exp(-self.gamma * (v[:, None] - S[None, part, 1]) ** 2)
+                out += (along_v * c[part]) @ along_u.T
+        return out
+
     def _kernel_blocks(self, scaled, kernel):
         """(rows, their points, their kernel block against the support vectors), a block
         of at most BLOCK_ENTRIES values at a time."""

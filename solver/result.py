@@ -206,6 +206,10 @@ class FitResult:
         """f evaluated anywhere (original units)."""
         return self.model.decision_function(points)
 
+    def decision_grid(self, xs, ys) -> np.ndarray:
+        """f on the lattice xs x ys as values[iy, ix] (``DecisionModel.grid_values``)."""
+        return self.model.grid_values(xs, ys)
+
     @property
     def has_gradient(self) -> bool:
         """Whether ``decision_gradient`` is exact (Gaussian kernel fits)."""

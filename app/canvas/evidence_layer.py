@@ -73,7 +73,7 @@ class EvidenceLayer:
             ends = geometry.clip_line(entry.w, -entry.b, rect)
             lines = [] if ends is None else [ends]
         else:                                   # a contour of f = 0 on the view's lattice
-            xs, ys, values = geometry.lattice_values(entry.decision_function, rect)
+            xs, ys, values = geometry.lattice_of(entry, rect)
             lines = geometry.level_polylines(values, xs, ys, 0.0)
         if not lines:
             self.ghost.setData([], [])

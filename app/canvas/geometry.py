@@ -311,7 +311,7 @@ def fit_geometry(result, rect, grid_values=None, project: bool = True,
             ends = clip_line(result.w, level - result.b, rect)
             lines[level] = [] if ends is None else [ends]
     else:
-        xs, ys, values = grid_values or lattice_values(result.decision_function, rect)
+        xs, ys, values = grid_values or lattice_of(result, rect)
         lines = {level: level_polylines(values, xs, ys, level) for level in (0.0, 1.0, -1.0)}
         if project:
             lines = {level: projected_polylines(result.decision_function, found, level, rect,
@@ -365,6 +365,13 @@ def lattice_values(f, rect, size: int = KERNEL_GRID):
     """(xs, ys, values[iy, ix]) of f on a size x size lattice over rect."""
     xs, ys, points = grid(rect, size)
     return xs, ys, np.asarray(f(points), dtype=float).reshape(len(ys), len(xs))
+
+
+def lattice_of(result, rect, size: int = KERNEL_GRID):
+    """(xs, ys, values[iy, ix]) of a fit's f on a size x size lattice over rect, by
+    the fit's own ``decision_grid`` (a Gaussian fit factors along the axes)."""
+    xs, ys, _ = grid(rect, size)
+    return xs, ys, np.asarray(result.decision_grid(xs, ys), dtype=float)
 
 
 def weight_arrow(result):

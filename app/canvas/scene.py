@@ -16,7 +16,6 @@ from app.document.class_words import caption
 from app.canvas.scale_note import ScaleNote
 from app.canvas.palette import class_colour, class_symbol, palette
 from app.document.background import LatestTask
-from solver.field import ExpansionField
 
 SLACK_INLINE = 2_000_000   # kernel values an evaluation of f at the slack points, up to
                            # which their segments are made on the window's thread (n = 1,000,
@@ -58,8 +57,6 @@ class SceneItems:
         self.plot = plot
         self.result = None
         self.shade = pg.ImageItem(lut=_shade_lookup(), levels=(-SHADE_LIMIT, SHADE_LIMIT))
-        # a kernel fit's f on the lattice, reusing the columns successive fits share
-        self.field = ExpansionField()
         # ``background``: slack segments too slow for the window's thread are made off it
         # (a figure rendered to a file draws them all at once)
         self.slack_task = LatestTask() if background else None
@@ -237,8 +234,7 @@ class SceneItems:
     def _draw_field(self, result, rect):
         x0, x1, y0, y1 = rect
         size = LINEAR_GRID if result.w is not None else KERNEL_GRID
-        xs, ys, values = geometry.lattice_values(
-            lambda points: self.field.values(result.model, points), rect, size)
+        xs, ys, values = geometry.lattice_of(result, rect, size)
         # ImageItem reads image[x, y]; each texel covers one lattice cell
         self.shade.setImage(values.T, autoLevels=False, levels=(-SHADE_LIMIT, SHADE_LIMIT))
         dx, dy = (x1 - x0) / (size - 1), (y1 - y0) / (size - 1)

@@ -73,6 +73,10 @@ class PointInfluence:
         """f of the fit without the point, anywhere (original units)."""
         return self.model.decision_function(points)
 
+    def decision_grid(self, xs, ys) -> np.ndarray:
+        """f without the point on the lattice xs x ys, as values[iy, ix]."""
+        return self.model.grid_values(xs, ys)
+
     @property
     def size(self) -> float:
         return abs(self.angle_change) if self.angle_change is not None \

@@ -11,6 +11,7 @@ Sources of the expected values, named beside each check:
 """
 
 import numpy as np
+import pytest
 
 from solver import FitConfig, fit
 from solver.qp import kernel_cache, pair_rows, smo, smo_core
@@ -82,3 +83,28 @@ def test_a_fit_of_more_points_than_single_from_is_as_exact_as_any(monkeypatch):
         assert result.converged
         _reference_check(X, y, result, C, gamma)               # SVC at tol 1e-10, gap 1e-8
     assert made == [900, 900]
+
+
+def test_on_single_rows_pair_steps_update_f_only_where_k_reaches_1e_7(monkeypatch):
+    # a narrow kernel on more points than SINGLE_FROM: the pair steps' F updates stop
+    # where k < exp(-NEAR_REACH), the rows they compute still reach exp(-REACH); the fit
+    # is as exact as any (SVC at tol 1e-10, relative gap 1e-8)
+    from solver.qp import smo, smo_core
+    seen = []
+    real = smo_core.smo_rbf
+
+    def watched(X, y, C, gamma, reach, near, *rest):
+        seen.append((reach, near))
+        return real(X, y, C, gamma, reach, near, *rest)
+
+    monkeypatch.setattr(smo_core, "smo_rbf", watched)
+    monkeypatch.setattr(pair_rows, "SINGLE_FROM", 800)
+    kernel_cache.RECENT.clear()
+    X, y = _blobs(900)
+    gamma, C = 50.0, 1.0
+    result = fit(X, y, FitConfig(C=C, kernel="rbf", gamma=gamma))
+    assert result.converged
+    _reference_check(X, y, result, C, gamma)
+    short = np.sqrt(smo.NEAR_REACH / gamma)
+    assert seen and all(near == pytest.approx(short) and short < reach < np.inf
+                        for reach, near in seen)

@@ -79,6 +79,13 @@ COMPILED_WARM_STEPS = 200        # ... and when they run compiled, with no such 
                                  # n = 1,000, gamma 2, C 100 a gamma step took 50,000 pair
                                  # steps (94 ms) after 30 face steps, and ends in 90-120
                                  # compiled face steps alone (12-18 ms), measured
+NEAR_REACH = 16.0                # on single rows, pair steps update F where k >= exp(-16)
+                                 # = 1e-7, about single precision's own rounding of k <= 1
+                                 # (F is computed afresh after them): gamma 50, C 1, side by
+                                 # side twice, n = 5,000 blobs 554-586 -> 504-513 ms, moons
+                                 # 710-745 -> 682-687, rings, density within noise; n = 10,000
+                                 # moons 4.61-4.67 -> 4.08-4.20 s, blobs within noise.
+                                 # exp(-10) .. exp(-24) measured alike
 RELEASE = 16                     # bound variables released per face step, worst first
                                  # (a quarter of them at once: most bounced straight back)
 
@@ -183,7 +190,8 @@ def _pair_steps(X, y, upper, gamma, alpha, F, eps, budget, columns):
     taken = 0
     while True:
         steps, violation, left_out = smo_core.smo_rbf(
-            X, y, upper, gamma, columns.reach, alpha, F, eps, budget - taken,
+            X, y, upper, gamma, columns.reach, _near(columns, rows, gamma), alpha, F, eps,
+            budget - taken,
             rows.store, rows.slot, rows.owner, rows.stamp,
             columns.store, columns.slot, columns.owner, columns.stamp)
         rows.clock = max(rows.clock, int(rows.stamp.max()))
@@ -197,6 +205,14 @@ def _pair_steps(X, y, upper, gamma, alpha, F, eps, budget, columns):
         violation = certify.violation(F, y, alpha, upper)
         if violation <= eps or taken >= budget:
             return taken, violation, F
+
+
+def _near(columns, rows, gamma) -> float:
+    """How far the pair steps update F: on single rows, whose F is computed afresh after
+    them anyway, only where k >= exp(-NEAR_REACH); else as far as the rows reach."""
+    if rows is columns or columns.reach == np.inf:
+        return columns.reach
+    return min(columns.reach, float(np.sqrt(NEAR_REACH / gamma)))
 
 
 def finish_on_face(columns, y, upper, alpha, gradient, gap_target):

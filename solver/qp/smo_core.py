@@ -231,14 +231,17 @@ def _best_pair(F, act, first, last, low, f_up, row_i, k_ii, best, j):
 
 
 @nb.njit(cache=True, nogil=True)
-def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owner, stamp,
-            doubles, d_slot, d_owner, d_stamp):
+def smo_rbf(X, y, C, gamma, reach, near, alpha, F, eps, max_steps, rows, slot_of, owner,
+            stamp, doubles, d_slot, d_owner, d_stamp):
     """Pair steps until max(F over up) - min(F over low) <= eps over the variables still
     searched, or max_steps.
 
     alpha and F are updated in place; F of variables left out by shrinking is
     not kept up to date (the caller computes F afresh when ``left_out``).
-    Returns (steps, violation over the searched ones, left_out).  The rows read are
+    Returns (steps, violation over the searched ones, left_out).  Rows are computed
+    within ``reach``; F is updated and pairs are chosen within ``near`` <= reach (a
+    shorter one leaves F off by the kernel values between them: the caller then computes
+    F afresh).  The rows read are
     singles (``pair_rows``) filled from the double rows ``doubles``
     (a KernelColumns' arrays, whole rows only) when ``rows`` holds singles; else
     ``rows`` are those, and the d_ arrays the same ones.
@@ -268,11 +271,11 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         row_i = rows[si]
         k_ii = row_i[i]
         lo_i, hi_i, first, last = 0, n, 0, m
-        if reach < np.inf:
-            lo_i, hi_i = window(X, i, reach)
+        if near < np.inf:
+            lo_i, hi_i = window(X, i, near)
             first, last = _bisect(act, m, lo_i), _bisect(act, m, hi_i)
         best, j = 0.0, -1
-        if reach < np.inf:             # beyond reach k_it = 0: one curvature, k_ii + 1
+        if near < np.inf:              # beyond reach k_it = 0: one curvature, k_ii + 1
             if lo_i <= lowest < hi_i:
                 best, j = best_beyond(F, act, m, first, last, low, f_up,
                                       max(k_ii + 1.0, TAU), bottom)
@@ -307,8 +310,8 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         _sides(y, C, alpha, i, up, low)
         _sides(y, C, alpha, j, up, low)
         # update F within reach of i or j and find the next extremes, in one pass
-        if reach < np.inf:
-            lo_j, hi_j = window(X, j, reach)
+        if near < np.inf:
+            lo_j, hi_j = window(X, j, near)
             first = _bisect(act, m, min(lo_i, lo_j))
             last = _bisect(act, m, max(hi_i, hi_j))
             update_blocks(F, act, m, first, last, up, low, step, row_i, row_j, top, top_at,
@@ -321,7 +324,7 @@ def smo_rbf(X, y, C, gamma, reach, alpha, F, eps, max_steps, rows, slot_of, owne
         if countdown <= 0:
             countdown = shrink_every
             m = _shrink(F, act, m, up, low, f_up, f_low)
-            if reach < np.inf:
+            if near < np.inf:
                 summarise(F, act, m, up, low, top, top_at, bottom, bottom_at)
     _drop_partial(d_slot, d_owner, d_stamp, partial)
     return steps, violation, m < n

@@ -23,25 +23,48 @@ from test_gui_fixtures import gauge_points, load_points, settle, temporary_setti
 CONFIG = FitConfig(kernel="rbf", gamma=2.0, C=0.3)
 
 
+class _Gates:
+    """One gate per held call, opened oldest first (``release``), so a test decides
+    which call's segments are ready, and in which order."""
+
+    def __init__(self):
+        self.events, self.opened, self.all_open = [], 0, False
+
+    def wait_turn(self):
+        event = threading.Event()
+        self.events.append(event)
+        if self.all_open:
+            event.set()
+        assert event.wait(20)
+
+    def release(self):
+        self.events[self.opened].set()
+        self.opened += 1
+
+    def open_all(self):
+        self.all_open = True
+        for event in self.events:
+            event.set()
+
+
 @pytest.fixture
 def held(monkeypatch):
-    """slack_of that waits off the window's thread until the test lets one call through
-    (``gate.release()``): the made-off-thread case, with the test deciding when
-    segments are ready."""
+    """slack_of that waits off the window's thread until the test lets that call through
+    (``gate.release()``, oldest first): the made-off-thread case, with the test deciding
+    when segments are ready."""
     monkeypatch.setattr(scene_module, "SLACK_INLINE", 0)
-    gate, calls = threading.Semaphore(0), []
+    gate, calls = _Gates(), []
     real = geometry.slack_of
 
     def slow(result, rect, stop=None):
         if threading.current_thread() is not threading.main_thread():
             calls.append(result)
-            assert gate.acquire(timeout=20)
+            gate.wait_turn()
         return real(result, rect, stop=stop)
 
     monkeypatch.setattr(geometry, "slack_of", slow)
     yield gate, calls
-    for _ in range(10):
-        gate.release()
+    gate.open_all()
 
 
 def _drawn(window):
@@ -90,10 +113,12 @@ def test_an_earlier_fits_segments_never_reach_the_screen(window, qtbot, held):
     window.document.set_C(3.0)
     settle(window, qtbot)
     qtbot.waitUntil(lambda: len(calls) == 3, timeout=10000)
+    # the dropped second's outcome arrives first, then the third's
     gate.release()
+    qtbot.waitUntil(lambda: len(background._RUNNING) == 1, timeout=10000)
+    qtbot.wait(50)
     gate.release()
     assert window.canvas.scene_items.slack_task.wait(20000)
-    qtbot.wait(100)      # the dropped second's outcome, had it been kept, arrives too
     starts, ends = _expected(window)
     xs, ys = window.canvas.scene_items.slack.getData()
     assert len(xs) == 2 * len(starts)

@@ -129,9 +129,12 @@ def newton_to_level(f, points, level, steps, max_step, tolerance=1e-9, iteration
         if not len(active) or (stop is not None and stop()):
             break
         need = active[~known[active]]
-        if len(need):
-            G[need] = (grad(x[need]) if grad is not None else both(x[need])[1]
-                       if both is not None else gradient(f, x[need], steps))
+        if len(need) and grad is not None:
+            G[need] = grad(x[need])
+        elif len(need) and both is not None:
+            G[need] = both(x[need])[1]
+        elif len(need):
+            G[need] = gradient(f, x[need], steps)
         g = G[active]
         norm2 = np.maximum(np.einsum("ij,ij->i", g, g), 1e-300)
         step = (residual[active] / norm2)[:, None] * g
@@ -359,12 +362,6 @@ def _no_slack():
 def _value_and_gradient_of(result):
     """The fit's own (f, grad f) where it has a gradient (Gaussian kernel fits), else None."""
     return result.decision_value_and_gradient if result.has_gradient else None
-
-
-def lattice_values(f, rect, size: int = KERNEL_GRID):
-    """(xs, ys, values[iy, ix]) of f on a size x size lattice over rect."""
-    xs, ys, points = grid(rect, size)
-    return xs, ys, np.asarray(f(points), dtype=float).reshape(len(ys), len(xs))
 
 
 def lattice_of(result, rect, size: int = KERNEL_GRID):

@@ -49,8 +49,6 @@ class LatestTask(QObject):
     thread for the latest only.  For drawing that is too slow for the GUI thread.
     """
 
-    _arrived = Signal(object)
-
     def __init__(self, parent=None):
         super().__init__(parent)
         self._current = None
@@ -62,9 +60,8 @@ class LatestTask(QObject):
 
     def start(self, work, done) -> None:
         self.cancel()
-        token = object()
-        task = BackgroundTask(lambda progress, cancel: (token, work(cancel)))
-        self._current, self._done = (token, task), done
+        task = BackgroundTask(lambda progress, cancel: work(cancel))
+        self._current, self._done = task, done
         task.succeeded.connect(self._on_succeeded)
         task.failed.connect(self._on_failed)
         task.finished.connect(self._on_finished)
@@ -73,7 +70,7 @@ class LatestTask(QObject):
 
     def cancel(self) -> None:
         if self._current is not None:
-            self._current[1].cancel()
+            self._current.cancel()
         self._current = self._done = None
 
     def wait(self, timeout_ms: int = 60000) -> bool:
@@ -82,17 +79,16 @@ class LatestTask(QObject):
 
     @Slot(object)
     def _on_succeeded(self, outcome):
-        token, value = outcome
-        if self._current is not None and token is self._current[0]:
+        if self._current is not None and self.sender() is self._current:
             done = self._done
             self._current = self._done = None
-            done(value)
+            done(outcome)
 
     @Slot(str)
     def _on_failed(self, message):
         # drawing only: a failure leaves that part of the picture out, as a stale one
         # would be; the fit itself is shown by the views that do not need it
-        if self._current is not None and self.sender() is self._current[1]:
+        if self._current is not None and self.sender() is self._current:
             self._current = self._done = None
 
     @Slot()

@@ -30,7 +30,7 @@ def _logical(L, order, m):
     return np.tril(L[order[:m], :m])
 
 
-@pytest.mark.parametrize("position", [0, 7, 18, 19])
+@pytest.mark.parametrize("position", [0, 2, 7, 15, 18, 19])
 def test_a_deleted_variable_leaves_the_factor_of_the_others(position):
     rng = np.random.default_rng(4)
     X = rng.normal(size=(20, 2))

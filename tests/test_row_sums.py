@@ -20,9 +20,14 @@ def _cache(X, gamma, capacity):
 
 @pytest.mark.parametrize("count", [0, 3, 4, 9, 40])
 @pytest.mark.parametrize("capacity", [50, 5])        # 5: fetching a group gives slots up
-def test_catching_up_subtracts_the_waiting_changes_on_every_point(count, capacity):
+@pytest.mark.parametrize("reach", [np.inf, 5.6])
+def test_catching_up_subtracts_the_waiting_changes_on_every_point(count, capacity, reach):
+    # a finite reach: the points in the order of their first feature, each row summed
+    # only within reach of its point (smo_core.window) and the rows taken in point order,
+    # four whose windows are unioned; beyond reach exp(-1.5 * 5.6^2) < 1e-20
     rng = np.random.default_rng(count + capacity)
-    X = rng.normal(size=(50, 2))
+    X = rng.normal(size=(50, 2)) * [3.0, 1.0]
+    X = X[np.argsort(X[:, 0])]
     gamma = 1.5
     rows, slot_of, owner, stamp = _cache(X, gamma, capacity)
     touched = rng.choice(50, size=count, replace=False)
@@ -33,7 +38,7 @@ def test_catching_up_subtracts_the_waiting_changes_on_every_point(count, capacit
     F = rng.normal(size=50)
     expected = F - _gaussian(X, X[touched], gamma) @ pending[touched]
     counts = np.zeros(1, dtype=np.int64)
-    row_sums.catch_up(F, pending, touched.astype(np.int64), marked, count, X, gamma, np.inf, rows,
+    row_sums.catch_up(F, pending, touched.astype(np.int64), marked, count, X, gamma, reach, rows,
                       slot_of, owner, stamp, 1, np.zeros(capacity, dtype=bool), np.arange(50),
                       counts)
     np.testing.assert_allclose(F, expected, rtol=0, atol=1e-13)

@@ -61,7 +61,12 @@ def catch_up(F, pending, touched, marked, waiting, X, gamma, reach, rows, slot_o
     """F -= K[:, touched] pending[touched] on every point, and pending back to 0.
 
     Rows are fetched four at a time; when fetching one made room by giving up the slot
-    of another of the four (a full cache), that group is summed one row at a time."""
+    of another of the four (a full cache), that group is summed one row at a time.
+    They are taken in point order, so that with the points in the order of their first
+    feature (a narrow kernel) the four rows summed together have nearly the same window:
+    taken as the face steps touched them, the union of four windows was most of the
+    points (n = 5,000 moons, gamma 50, C 1: catch-ups 90 -> 50 ms of 334)."""
+    touched[:waiting].sort()
     k = 0
     while k + GROUP <= waiting:
         i0, i1, i2, i3 = touched[k], touched[k + 1], touched[k + 2], touched[k + 3]

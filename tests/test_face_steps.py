@@ -57,26 +57,27 @@ def test_a_deleted_variable_leaves_the_factor_of_the_others(position):
     np.testing.assert_allclose(low @ low.T, K[np.ix_(kept, kept)], atol=1e-13)
 
 
-def test_the_kept_solve_and_step_match_the_face_system_written_out():
+@pytest.mark.parametrize("size", [12, 11])     # the backward pass takes rows two at a time
+def test_the_kept_solve_and_step_match_the_face_system_written_out(size):
     # the bordered system [K 1; 1' 0][d; b] = [f; -e] solved by numpy, against
     # _kept_solve from z = L^-1 f and L^-1 1; then a step of t = 0.3 with member 4 hit
     # (moved by 0.05 instead of t d_4): L^-1 of f - K (change of beta), written out
     rng = np.random.default_rng(6)
-    X = rng.normal(size=(12, 2))
-    K = _gaussian(X, X, 2.0)
+    X = rng.normal(size=(size, 2))
+    K = _gaussian(X, X, 2.0) + 0.5 * np.eye(size)   # a diagonal of L other than 1 (L[0, 0])
     L, order = _factor(K, 16), np.arange(16)
-    f, e = rng.normal(size=12), 0.02
+    f, e = rng.normal(size=size), 0.02
     za, zb = np.zeros(16), np.zeros(16)
-    factor_core._forward(L, order, 12, f, za, zb)
+    factor_core._forward(L, order, size, f, za, zb)
     d = np.zeros(16)
-    b = factor_core._kept_solve(L, order, 12, e, za, zb, d)
-    bordered = np.block([[K, np.ones((12, 1))], [np.ones((1, 12)), np.zeros((1, 1))]])
+    b = factor_core._kept_solve(L, order, size, e, za, zb, d)
+    bordered = np.block([[K, np.ones((size, 1))], [np.ones((1, size)), np.zeros((1, 1))]])
     expected = np.linalg.solve(bordered, np.r_[f, -e])
-    np.testing.assert_allclose(np.r_[d[:12], b], expected, atol=1e-9)
+    np.testing.assert_allclose(np.r_[d[:size], b], expected, atol=1e-9)
     hit, change = np.zeros(16), 0.3 * d
     hit[4], change[4] = 1.0, 0.05
-    factor_core._kept_step(L, order, 12, za, zb, 0.3, b, hit, change, d)
-    np.testing.assert_allclose(np.tril(L[:12, :12]) @ za[:12], f - K @ change[:12],
+    factor_core._kept_step(L, order, size, za, zb, 0.3, b, hit, change, d)
+    np.testing.assert_allclose(np.tril(L[:size, :size]) @ za[:size], f - K @ change[:size],
                                atol=1e-10)
 
 

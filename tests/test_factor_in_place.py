@@ -9,6 +9,7 @@ Sources of the expected values, named beside each check:
 """
 
 import numpy as np
+from threadpoolctl import ThreadpoolController
 
 from solver.qp import face_kept, factor_core
 from solver.qp.kernel_cache import KernelColumns
@@ -33,6 +34,26 @@ def test_a_factor_made_in_place_is_the_cholesky_factor_of_the_ridged_block():
     np.testing.assert_allclose(L @ L.T, block, rtol=0, atol=1e-13)      # LL' = K_SS + mu I
     np.testing.assert_allclose(L, np.linalg.cholesky(block), rtol=0, atol=1e-12)  # numpy's
     assert list(kept.members[:k]) == list(free) and kept.m == k
+
+
+def test_a_large_factor_on_several_threads_is_numpys_and_leaves_blas_on_one(monkeypatch):
+    # from THREADED members on, LAPACK may use several threads for the factor; the fits'
+    # one-thread limit (dual_solver.solve_dual) holds again afterwards
+    monkeypatch.setattr(face_kept, "THREADED", 100)
+    rng = np.random.default_rng(12)
+    X = rng.normal(size=(400, 2)) * 3.0         # a narrow kernel: a well conditioned K_SS
+    gamma = 5.0
+    columns = KernelColumns(X, lambda A, B: rbf_matrix(A, B, gamma))
+    columns.rbf_gamma = gamma
+    free = rng.permutation(400)[:300]
+    kept = face_kept.KeptFactor(320)
+    controller = ThreadpoolController()
+    with controller.limit(limits=1, user_api="blas"):
+        assert face_kept._refactor(kept, columns, free)
+        assert all(lib.num_threads == 1 for lib in controller.select(user_api="blas").lib_controllers)
+    block = _gaussian(X[free], X[free], gamma) + factor_core.RIDGE * np.eye(300)
+    L = np.tril(kept.L[kept.order[:300], :300])
+    np.testing.assert_allclose(L, np.linalg.cholesky(block), rtol=0, atol=1e-11)  # numpy's
 
 
 def test_a_block_that_is_not_positive_definite_is_refused():

@@ -45,7 +45,7 @@ from solver.qp.row_sums import catch_up as _catch_up
 DONE, STOPPED, HAND_BACK = 1, 0, -1      # what face_steps returns first
 FACTOR, DENSE, NEITHER = 0, 1, -1        # what _add returns
 RESIDUAL = 1e-9                          # face-system residual accepted, relative to max |F_S|
-CHECKED = 32                             # rows of the face system checked after each solve
+CHECKED = 16                             # rows of the face system checked after each solve
 REFINE = 2                               # steps of iterative refinement when a check fails
 POLISH = 2                               # face steps more when F_S ends off b
 

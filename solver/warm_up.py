@@ -53,7 +53,7 @@ def _compile_rows() -> None:
     X = np.array(_RING + _CORE, dtype=float)
     rbf_block(X, X, _CONFIG.gamma, UNDERFLOW)
     row_sums.add_rows(np.ones((2, len(X))), np.arange(2, dtype=np.intp), np.ones(2),
-                      np.zeros(len(X)))
+                      np.zeros(len(X)), X, np.arange(2, dtype=np.intp), np.inf)
 
 
 def _compile_all(started: float) -> float:

@@ -53,5 +53,28 @@ def test_adding_rows_is_the_weighted_sum_of_the_rows(count):
     weights = rng.normal(size=count)
     out = rng.normal(size=30)
     expected = out + weights @ store[slots]
-    row_sums.add_rows(store, slots, weights, out)
+    row_sums.add_rows(store, slots, weights, out, rng.normal(size=(30, 2)),
+                      rng.choice(30, size=count).astype(np.intp), np.inf)
+    np.testing.assert_allclose(out, expected, rtol=0, atol=1e-13)
+
+
+@pytest.mark.parametrize("count", [1, 4, 7, 30])
+def test_adding_rows_within_reach_is_the_whole_product(count):
+    # the points in the order of their first feature, K written out with the values
+    # below exp(-46) as 0 (as the solver's rows keep them, smo_core.FLOOR): summed only
+    # within reach of each group of four rows, the product is still that of whole rows
+    rng = np.random.default_rng(40 + count)
+    X = rng.normal(size=(60, 2)) * [4.0, 1.0]
+    X = X[np.argsort(X[:, 0])]
+    gamma = 2.0
+    K = _gaussian(X, X, gamma)
+    K[K < np.exp(-46.0)] = 0.0
+    points = np.sort(rng.choice(60, size=count, replace=False)).astype(np.intp)
+    slots = rng.permutation(60)[:count].astype(np.intp)
+    store = np.zeros((60, 60))
+    store[slots] = K[points]
+    weights = rng.normal(size=count)
+    out = rng.normal(size=60)
+    expected = out + weights @ K[points]
+    row_sums.add_rows(store, slots, weights, out, X, points, float(np.sqrt(46.0 / gamma)))
     np.testing.assert_allclose(out, expected, rtol=0, atol=1e-13)

@@ -208,11 +208,11 @@ class KernelColumns:
         """K[:, idx] @ weights, without keeping columns that do not fit."""
         idx = np.asarray(idx, dtype=np.intp)
         if len(idx) <= self.capacity:
-            return self._combine(self._ensure(idx), weights, np.zeros(len(self.X)))
+            return self._combine(self._ensure(idx), idx, weights, np.zeros(len(self.X)))
         out = np.zeros(len(self.X))
         cached = self.slot[idx] >= 0
         if cached.any():
-            self._combine(self.slot[idx[cached]], weights[cached], out)
+            self._combine(self.slot[idx[cached]], idx[cached], weights[cached], out)
         rest = np.flatnonzero(~cached)
         step = max(1, BLOCK // len(self.X))
         for start in range(0, len(rest), step):
@@ -221,10 +221,13 @@ class KernelColumns:
         self.computed += len(rest) * len(self.X)
         return out
 
-    def _combine(self, slots, weights, out):
-        """out += weights @ store[slots], the rows read in place (compiled)."""
+    def _combine(self, slots, points, weights, out):
+        """out += weights @ store[slots] (the rows of ``points``), read in place and within
+        reach (compiled)."""
         row_sums.add_rows(self.store, np.ascontiguousarray(slots, dtype=np.intp),
-                          np.ascontiguousarray(weights, dtype=float), out)
+                          np.ascontiguousarray(weights, dtype=float), out,
+                          np.ascontiguousarray(self.X, dtype=float),
+                          np.ascontiguousarray(points, dtype=np.intp), float(self.reach))
         return out
 
     def _ensure(self, idx: np.ndarray) -> np.ndarray:

@@ -36,22 +36,30 @@ def _four(out, sign, w0, w1, w2, w3, r0, r1, r2, r3, lo, hi):
 
 
 @nb.njit(cache=True, nogil=True)
-def add_rows(store, slots, weights, out):
-    """out += weights @ store[slots], reading the rows where they are (numpy would first
-    gather them into a copy: for a face step on 280 of 1,000 points, 0.3 ms against
-    0.1), four at a time."""
+def add_rows(store, slots, weights, out, X, points, reach):
+    """out += weights @ store[slots], the rows of ``points``, reading the rows where they
+    are (numpy would first gather them into a copy: for a face step on 280 of 1,000
+    points, 0.3 ms against 0.1), four at a time, each four within the union of their
+    windows (``smo_core.window``: the rows are 0 beyond reach; all of a row when reach is
+    inf).  With the points in order, four rows have nearly the same window: F afresh
+    at n = 5,000, moons, gamma 50, C 1: 6 -> 3 ms a call (profiled)."""
     k = 0
     count = len(slots)
     while k + GROUP <= count:
+        lo, hi = len(out), 0
+        for q in range(k, k + GROUP):
+            a, z = window(X, points[q], reach)
+            lo, hi = min(lo, a), max(hi, z)
         _four(out, 1.0, weights[k], weights[k + 1], weights[k + 2], weights[k + 3],
               store[slots[k]], store[slots[k + 1]], store[slots[k + 2]], store[slots[k + 3]],
-              0, len(out))
+              lo, max(lo, hi))
         k += GROUP
     for q in range(k, count):
         w = weights[q]
         if w != 0.0:
             row = store[slots[q]]
-            for t in range(len(out)):
+            lo, hi = window(X, points[q], reach)
+            for t in range(lo, hi):
                 out[t] += w * row[t]
 
 

@@ -262,7 +262,7 @@ def test_long_compiled_steps_from_a_rough_start_end_at_the_optimum_with_F_exact(
     # the free set is followed); what the steps hand back must still be y - K beta.  On
     # the moons at C 100, released variables push each other out again: releasing 16
     # every time (and putting near-bound ones on their bound at steps of 0) did not end
-    # within LONG_STEPS (mutation-checked)
+    # within 800 steps, the stage finish's limit then (mutation-checked)
     X, y = make(1_200)
     y, upper = y.astype(float), np.full(1_200, C)
     columns = smo.rbf_columns(X, gamma)
@@ -270,7 +270,7 @@ def test_long_compiled_steps_from_a_rough_start_end_at_the_optimum_with_F_exact(
     _, _, F = smo._pair_steps(X, y, upper, gamma, alpha, y.copy(), 1e-2, 10**7, columns)
     F = smo._fresh_F(columns, y, alpha)
     status, steps = face_kept.face_steps(
-        columns, y, upper, alpha, F, smo.LONG_STEPS, True, None,
+        columns, y, upper, alpha, F, 800, True, None,
         (smo.RELEASE, smo.WIDE_FACE, smo.NEAR_BOUND, smo.SHORT, smo.SHORT_STEPS),
         face_kept.room(columns, 1_200, smo.FACE_LIMIT))
     assert status == face_core.DONE and steps >= 5
@@ -292,6 +292,28 @@ def test_a_stage_finishes_with_long_compiled_steps_alone(monkeypatch):
     found = smo.solve_rbf(X, y, np.ones(400), 10.0, 5e-9, stages=1)
     assert calls == [(smo.LONG_STEPS, False)] and found.optimal
     _reference_check(X, y, SimpleNamespace(alpha=found.alpha, b=found.b), 1.0, 10.0)
+
+
+def test_the_decompositions_finish_on_the_face_takes_its_own_step_limit(monkeypatch):
+    # the stage finish is long (LONG_STEPS); the one the decomposition asks for at large C
+    # stops sooner (ON_FACE_STEPS), where its rounds do better, and still ends a fit
+    # whose free set is the optimum's
+    X, y = _moons(400)
+    y, upper = y.astype(float), np.full(400, 10.0)
+    columns = smo.rbf_columns(X, 10.0)
+    alpha = np.zeros(400)
+    smo._pair_steps(X, y, upper, 10.0, alpha, y.copy(), 1e-3, 10**7, columns)
+    F = smo._fresh_F(columns, y, alpha)
+    calls = []
+    finish = smo._finish
+    monkeypatch.setattr(smo, "_finish",
+                        lambda *a, **k: calls.append(a[5]) or finish(*a, **k))
+    found = smo.finish_on_face(columns, y, upper, alpha, -y * F, 5e-9)
+    assert calls == [smo.ON_FACE_STEPS] and smo.ON_FACE_STEPS < smo.LONG_STEPS
+    assert found is not None
+    alpha_found, _, b, gap = found
+    assert gap <= 5e-9
+    _reference_check(X, y, SimpleNamespace(alpha=alpha_found, b=b), 10.0, 10.0)
 
 
 @pytest.mark.parametrize("gamma, C", [(2.0, 10.0), (0.5, 100.0)])

@@ -177,6 +177,7 @@ def test_a_fit_stopped_by_its_round_limit_raises_with_its_best_iterate(monkeypat
     monkeypatch.setattr(smo, "FEW_STEPS", 0)
     monkeypatch.setattr(smo, "PATIENT_STEPS", 0)
     monkeypatch.setattr(smo, "LONG_STEPS", 0)
+    monkeypatch.setattr(smo, "ON_FACE_STEPS", 0)
     monkeypatch.setattr(dual_solver, "MAX_ROUNDS", 1)
     monkeypatch.setattr(dual_solver, "START", "subsample")
     X, y = _moons(600)

@@ -66,10 +66,16 @@ STEPS_PER_POINT = 15             # ... and at most this many per point: past it 
 FACE_STEPS = 30                  # active-set steps in Python after each stage of pair steps
 WIDE_FACE = 200                  # ... up to this many free; above, FEW_STEPS
 FEW_STEPS = 20
-LONG_STEPS = 800                 # ... or, on any free set, when they run compiled, this
+LONG_STEPS = 1_600               # ... or, on any free set, when they run compiled, this
                                  # many, patient (n = 5,000 blobs, gamma 10, C 1: 536 steps
                                  # from 935 free on a singular face end the fit, 0.54 s,
-                                 # where 400 left it to the decomposition, 0.68 s)
+                                 # where 400 left it to the decomposition, 0.68 s; n =
+                                 # 10,000 density, gamma 50, C 1: 800 left 2,514 free at
+                                 # 1,671, then a second stage and 406 steps, 3.1 s; 1,600
+                                 # end it from the first stage, 1.75 s)
+ON_FACE_STEPS = 800              # finish_on_face's: at large C the decomposition's rounds
+                                 # do better after that many (n = 10,000 blobs, gamma 10,
+                                 # C 1e4: 22.4 s, 29.9 s with 1,600)
 SHORT, SHORT_STEPS = 1e-2, 3     # face steps this short, this many in a row: back to pairs
                                  # (one, above WIDE_FACE free: each costs |S|^3 / 3)
 PATIENT_FROM = 2                 # from this stage on (and after a warm start) the finish
@@ -232,7 +238,7 @@ def finish_on_face(columns, y, upper, alpha, gradient, gap_target):
     # compiled, the long finish of a stage (n = 10,000 blobs, gamma 50, C 100: 28 rounds
     # and 9.7 s with 100 steps on at most 1,500 free, 5 rounds and 7.1 s so)
     compiled = face_kept.available(columns, len(y), free, FACE_LIMIT)
-    _finish(columns, y, upper, alpha, F, LONG_STEPS if compiled else PATIENT_STEPS, [0],
+    _finish(columns, y, upper, alpha, F, ON_FACE_STEPS if compiled else PATIENT_STEPS, [0],
             patient=True)
     F = _fresh_F(columns, y, alpha)
     b, gap = _certificate(alpha, F, y, upper)

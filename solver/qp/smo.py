@@ -52,9 +52,12 @@ CACHE_BYTES = 300 * 2**20        # kernel rows kept (whole K up to 6,270 points)
                                  # 3.97 -> 2.46 s; blobs, gamma 50: 5.6 -> 5.3 s
 VIOLATIONS = (1e-3, 1e-4, 1e-6, 1e-9)   # pair steps stop at these, one after another
 PREFILL = 2_000                  # points up to which all of K is computed up front
-FACE_LIMIT = 3_000               # free variables up to which the face system is solved
-                                 # (at 3,070 free, n = 10,000, gamma 100, C 1, face steps
-                                 # cost 1-2 s each and did not end the fit: measured)
+FACE_LIMIT = 4_000               # free variables up to which the face system is solved
+                                 # (the cache's rows less face_kept.SPARE bound it too:
+                                 # 3,868 at n = 10,000).  3,000 left n = 10,000, gamma 100,
+                                 # C 1 to the decomposition: blobs 15.4 s, 100 rounds; moons
+                                 # 32 s, 194 rounds; 2.5 and 4.7 s so; blobs gamma 50:
+                                 # 5.2 -> 4.5 s (the free set after two stages is 3,220)
 STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together, at most
 STEPS_PER_POINT = 15             # ... and at most this many per point: past it (large C,
                                  # a nearly hard margin) the decomposition's rounds and its

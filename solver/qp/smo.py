@@ -45,11 +45,11 @@ from solver.qp.pair_rows import rows_for_pair_steps
 log = logging.getLogger(__name__)
 
 CACHE_BYTES = 300 * 2**20        # kernel rows kept (whole K up to 6,270 points): at n = 10,000
-                                 # the 3,932 rows hold the free set the second stage leaves
-                                 # (2,829, moons, gamma 50, C 1) with room for the face
-                                 # finish, where 200 MiB (the reference library's default,
-                                 # 2,621 rows) sent it to ten decomposition rounds first:
-                                 # 3.97 -> 2.46 s; blobs, gamma 50: 5.6 -> 5.3 s
+                                 # the 3,932 rows hold the free sets narrow kernels leave
+                                 # (gamma 50, C 1: 2,829-3,254 after one or two stages) with
+                                 # room for the face finish, where 200 MiB (the reference
+                                 # library's default, 2,621 rows) sent them to ten
+                                 # decomposition rounds first (moons 3.97 -> 2.46 s)
 VIOLATIONS = (1e-3, 1e-4, 1e-6, 1e-9)   # pair steps stop at these, one after another
 PREFILL = 2_000                  # points up to which all of K is computed up front
 FACE_LIMIT = 4_000               # free variables up to which the face system is solved
@@ -57,7 +57,7 @@ FACE_LIMIT = 4_000               # free variables up to which the face system is
                                  # 3,868 at n = 10,000).  3,000 left n = 10,000, gamma 100,
                                  # C 1 to the decomposition: blobs 15.4 s, 100 rounds; moons
                                  # 32 s, 194 rounds; 2.5 and 4.7 s so; blobs gamma 50:
-                                 # 5.2 -> 4.5 s (the free set after two stages is 3,220)
+                                 # 5.2 -> 4.3 s (3,254 free after the first stage)
 STEP_LIMIT = 50_000_000          # pair steps in one fit, all stages together, at most
 STEPS_PER_POINT = 15             # ... and at most this many per point: past it (large C,
                                  # a nearly hard margin) the decomposition's rounds and its

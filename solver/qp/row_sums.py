@@ -36,6 +36,17 @@ def _four(out, sign, w0, w1, w2, w3, r0, r1, r2, r3, lo, hi):
 
 
 @nb.njit(cache=True, nogil=True)
+def _reach_of_four(X, points, k, reach):
+    """(lo, hi): the points within reach of any of points[k:k + GROUP] (the union of
+    their ``smo_core.window``s)."""
+    lo, hi = len(X), 0
+    for q in range(k, k + GROUP):
+        a, z = window(X, points[q], reach)
+        lo, hi = min(lo, a), max(hi, z)
+    return lo, hi
+
+
+@nb.njit(cache=True, nogil=True)
 def add_rows(store, slots, weights, out, X, points, reach):
     """out += weights @ store[slots], the rows of ``points``, reading the rows where they
     are (numpy would first gather them into a copy: for a face step on 280 of 1,000
@@ -46,13 +57,10 @@ def add_rows(store, slots, weights, out, X, points, reach):
     k = 0
     count = len(slots)
     while k + GROUP <= count:
-        lo, hi = len(out), 0
-        for q in range(k, k + GROUP):
-            a, z = window(X, points[q], reach)
-            lo, hi = min(lo, a), max(hi, z)
+        lo, hi = _reach_of_four(X, points, k, reach)
         _four(out, 1.0, weights[k], weights[k + 1], weights[k + 2], weights[k + 3],
               store[slots[k]], store[slots[k + 1]], store[slots[k + 2]], store[slots[k + 3]],
-              lo, max(lo, hi))
+              lo, hi)
         k += GROUP
     for q in range(k, count):
         w = weights[q]
@@ -84,10 +92,7 @@ def catch_up(F, pending, touched, marked, waiting, X, gamma, reach, rows, slot_o
         r3 = _row(i3, X, gamma, reach, rows, slot_of, owner, stamp, clock, partial, act, counts)
         if slot_of[i0] < 0 or slot_of[i1] < 0 or slot_of[i2] < 0:
             break                            # one of the four gave its slot up: one by one
-        lo, hi = len(F), 0                   # the points within reach of any of the four
-        for i in (i0, i1, i2, i3):
-            a, z = window(X, i, reach)
-            lo, hi = min(lo, a), max(hi, z)
+        lo, hi = _reach_of_four(X, touched, k, reach)
         _four(F, -1.0, pending[i0], pending[i1], pending[i2], pending[i3], r0, r1, r2, r3,
               lo, hi)
         for i in (i0, i1, i2, i3):

@@ -13,13 +13,15 @@ once per step (n = 5,000, gamma 50, C 1: 195 steps on 1,500-1,750 free took
 1.9 s reading K[:, S] at each, 0.75 s so).  A step costs O(|S|^2) then,
 instead of |S|^3 / 3 plus Python's overhead per array operation.
 
-The steps follow ``smo._face_steps`` (same step to the box), with two changes
+The steps follow ``smo._face_steps`` (same step to the box), with three changes
 for long finishes: at a step of length 0 no variable is put on a bound it does
 not reach, and when most of the variables just released go straight back to
 their bound, fewer are released at the next check (half, down to one; back up
 when none does).  Released together, variables at a nearly degenerate face
 can push each other out again and again (n = 5,000 moons, gamma 50, C 100:
-400 steps without an end from 11 on the wrong side; 42 steps so).
+400 steps without an end from 11 on the wrong side; 42 steps so).  And a check
+releases the worst of those that lie apart (``face_release``): neighbours are on
+the wrong side for one reason, and the release of one mostly settles the others.
 The factor is of K_SS + mu I (``factor_core.RIDGE``, which says why): F_S
 follows K_SS (t d) = t (F_S - b - mu d), and so do L^-1 F_S and L^-1 1, which
 make a step one pass over L (``factor_core._kept_solve``).  Each solve is
@@ -37,6 +39,7 @@ from __future__ import annotations
 import numba as nb
 import numpy as np
 
+from solver.qp.face_release import pick_apart
 from solver.qp.factor_core import (RIDGE, _append, _append_block, _block_row, _delete, _forward,
                                   _kept_solve, _kept_step, _lu_solve, _remove, _solve)
 from solver.qp.row_sums import _row
@@ -83,17 +86,6 @@ def _dense_solve(X, gamma, reach, F, members, m, excess, d, rows, slot_of, owner
     for r in range(m):
         d[r] = right[r]
     return True, right[m]
-
-
-@nb.njit(cache=True, nogil=True)
-def _take_largest(values):
-    """The index of the largest value (the first of equals), which is then set to 0."""
-    best, j = values[0], 0
-    for t in range(1, len(values)):
-        if values[t] > best:
-            best, j = values[t], t
-    values[j] = 0.0
-    return j
 
 
 @nb.njit(cache=True, nogil=True, fastmath=True)
@@ -341,8 +333,8 @@ def face_steps(X, gamma, reach, y, upper, alpha, F, L, order, members, m, limit,
         released = min(releasing, count)
         if m + released > capacity:
             return HAND_BACK, steps, counts[0], -1
+        released = pick_apart(wrong, count, released, picked, X, gamma)
         for k in range(released):
-            picked[k] = _take_largest(wrong)
             fresh[picked[k]] = True
         joined = 0            # to the factor together, one pass over L (_append_block)
         if not dense:

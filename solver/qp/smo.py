@@ -101,7 +101,8 @@ NEAR_REACH = 16.0                # on single rows, pair steps update F where k >
                                  # moons 4.61-4.67 -> 4.08-4.20 s, blobs within noise.
                                  # exp(-10) .. exp(-24) measured alike
 RELEASE = 16                     # bound variables released per face step, worst first
-                                 # (a quarter of them at once: most bounced straight back)
+                                 # (a quarter of them at once: most bounced straight back;
+                                 # compiled, the worst of those apart, face_release.APART)
 
 
 @dataclass(frozen=True)

@@ -100,9 +100,13 @@ NEAR_REACH = 16.0                # on single rows, pair steps update F where k >
                                  # 710-745 -> 682-687, rings, density within noise; n = 10,000
                                  # moons 4.61-4.67 -> 4.08-4.20 s, blobs within noise.
                                  # exp(-10) .. exp(-24) measured alike
-RELEASE = 16                     # bound variables released per face step, worst first
-                                 # (a quarter of them at once: most bounced straight back;
-                                 # compiled, the worst of those apart, face_release.APART)
+RELEASE = 32                     # bound variables released per face step, worst first
+                                 # (compiled: the worst of those apart, face_release.APART).
+                                 # 16 while they were taken worst first alone (more
+                                 # bounced straight back); apart, 32: n = 10,000,
+                                 # gamma 50, C 1, side by side twice, blobs 3.17 -> 2.89 s,
+                                 # moons 1.85 -> 1.66 s; n = 5,000 moons 461 -> 417 ms;
+                                 # the other cells of the grids within noise
 
 
 @dataclass(frozen=True)
@@ -273,8 +277,8 @@ def _fresh_F(columns, y, alpha):
 
 
 def _wrong_side(alpha, F, y, upper) -> int:
-    """How many bound variables are on the wrong side of b: the face steps release 16 a
-    step, so with more than FAR of them a finish on a large free set (its first step a
+    """How many bound variables are on the wrong side of b: the face steps release RELEASE
+    (32) a step, so with more than FAR of them a finish on a large free set (its first step a
     Cholesky factor of K_SS) rarely ends the fit.  (n = 5,000, every stage finish of
     the bench's grid: those that ended it had at most 26; those above 64 failed, after
     0.06-0.66 s; at n = 1,000 none had more than 8.)"""

@@ -330,8 +330,8 @@ def face_steps(X, gamma, reach, y, upper, alpha, F, L, order, members, m, limit,
         for t in range(n):
             fresh[t] = False
         bounced = 0
-        released = min(releasing, count)
-        if m + released > capacity:
+        released = min(releasing, count, capacity - m)    # as many as there is room for
+        if released == 0:
             return HAND_BACK, steps, counts[0], -1
         released = pick_apart(wrong, count, released, picked, X, gamma)
         for k in range(released):

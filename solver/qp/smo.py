@@ -16,7 +16,8 @@ drops what reached one; when they stay inside, bound variables on the wrong
 side of b are released, worst first.  Pair steps run in stages of tighter
 violation (VIOLATIONS), each followed by a finish: when the cache holds the
 free set's kernel rows, a long patient one in compiled steps (LONG_STEPS),
-which from the first stage often ends the fit; otherwise a short one in
+which from the first stage often ends the fit (a free set a little larger is first
+fitted to the cache, ``face_kept.onto_room``); otherwise a short one in
 Python, skipped when more than FAR bound variables are on the wrong side of a
 large free set's b (then it rarely ends the fit, and its first step alone is a
 Cholesky factor of K_SS).  Every
@@ -166,6 +167,9 @@ def solve_rbf(X, y, upper, gamma, gap_target, alpha_start=None, columns=None,
         free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
         patient = (stage >= PATIENT_FROM or alpha_start is not None) and free <= PATIENT_FREE
         paired = alpha.copy()
+        F = face_kept.onto_room(columns, y, upper, alpha, F,
+                                face_kept.room(columns, n, FACE_LIMIT))
+        free = int(np.count_nonzero((alpha > 0) & (alpha < upper)))
         if face_kept.available(columns, n, free, FACE_LIMIT):
             # compiled face steps: a long patient finish, which from the first stage's
             # 1e-3 ends most fits (n = 5,000, gamma 50, C 1: 203 steps from 1,744 free

@@ -88,7 +88,7 @@ def onto_room(columns, y, upper, alpha, F, room, over=OVER_ROOM, left=ROOM_LEFT)
     one of them short of its bound).  F unchanged otherwise.
 
     Most of those are at that bound at the optimum (n = 10,000 blobs, gamma 50, C 1:
-    68% of the free variables below 0.03 C after the first stage), and those that are
+    69% of the free variables below 0.03 C after the first stage), and those that are
     not come back at the face steps' release checks.  The face steps then serve a free
     set that outgrew the cache's room by a little, where the decomposition's rounds
     took over (n = 10,000 moons, gamma 100, C 1: 4,191 free after the first stage, room

@@ -102,11 +102,17 @@ def onto_room(columns, y, upper, alpha, F, room, over=OVER_ROOM, left=ROOM_LEFT)
     bound = np.where(alpha[put] < upper[put] / 2, 0.0, upper[put])
     F = F - columns.product(put, (bound - alpha[put]) * y[put])
     alpha[put] = bound
+    balance(columns, y, alpha, F)
+    return F
+
+
+def balance(columns, y, alpha, F):
+    """y'a = 0 made exact again (alpha and F in place): ``dual_start.feasible`` lowers
+    the heavier class, least needed first, and F follows the alphas it changed."""
     balanced = feasible(alpha, y, -y * F)
     changed = np.flatnonzero(balanced != alpha)
     F -= columns.product(changed, (balanced[changed] - alpha[changed]) * y[changed])
     alpha[changed] = balanced[changed]
-    return F
 
 
 def face_steps(columns, y, upper, alpha, F, limit, patient, far, settings, room):

@@ -37,7 +37,6 @@ from solver.kernels.rbf_core import rbf_block
 from solver.qp import dual_certify as certify
 from solver.qp import face_core, face_kept, point_order, smo_core
 from solver.qp.copies import gathered
-from solver.qp.dual_start import feasible
 from solver.qp.face_factor import FaceFactor
 from solver.qp.face_system import NEAR_BOUND, face_system, step_in_box
 from solver.qp.kernel_cache import KernelColumns
@@ -317,10 +316,7 @@ def _finish(columns, y, upper, alpha, F, limit, tally, patient=False, far=None, 
     done = _face_steps(columns, y, upper, alpha, F, limit, tally, patient, far, python)
     if _balanced(alpha, y):
         return done
-    repaired = feasible(alpha, y, -y * F)       # lowers the heavier class, least needed first
-    changed = np.flatnonzero(repaired != alpha)
-    F -= columns.product(changed, (repaired[changed] - alpha[changed]) * y[changed])
-    alpha[changed] = repaired[changed]
+    face_kept.balance(columns, y, alpha, F)
     return False
 
 
